@@ -4,6 +4,7 @@
 package catalog
 
 import (
+	"encoding/json"
 	"strings"
 	"unicode"
 
@@ -233,4 +234,86 @@ func NormKey(s string) string {
 		b.WriteRune(unicode.ToUpper(r))
 	}
 	return b.String()
+}
+
+// MarshalJSON writes a part flat, with every field under its canonical name
+// in base SI units (°C for temperatures) and the offers with price breaks:
+// {"kind":"diode","mpn":"X","vrrm":400,"ifav":2,...,"offers":[...]}.
+func (p Part) MarshalJSON() ([]byte, error) {
+	m := p.Flat()
+	if len(p.Offers) > 0 {
+		m["offers"] = p.Offers
+	} else {
+		m["offers"] = []Offer{}
+	}
+	return json.Marshal(m)
+}
+
+// Flat returns the part's present fields by canonical name: strings for
+// text and enum fields, bool for booleans, float64 for numbers.
+func (p *Part) Flat() map[string]any {
+	m := map[string]any{"kind": string(p.Kind), "mfr": p.Mfr, "mpn": p.MPN}
+	put := func(k, v string) {
+		if v != "" {
+			m[k] = v
+		}
+	}
+	put("type", p.Type)
+	put("desc", p.Desc)
+	put("package", p.Package)
+	put("datasheet", p.Datasheet)
+	put("lifecycle", p.Lifecycle)
+	put("fuse_std", p.FuseStd)
+	put("rerate", p.Rerate)
+	if p.RoHS != nil {
+		m["rohs"] = *p.RoHS
+	}
+	if p.AECQ != nil {
+		m["aecq"] = *p.AECQ
+	}
+	for k, v := range p.Num {
+		m[k] = v
+	}
+	return m
+}
+
+// TextField returns a text, enum or bool field of p as text ("" when
+// absent; booleans as "yes"/"no").
+func (p *Part) TextField(name string) string {
+	b := func(x *bool) string {
+		if x == nil {
+			return ""
+		}
+		if *x {
+			return "yes"
+		}
+		return "no"
+	}
+	switch name {
+	case "kind":
+		return string(p.Kind)
+	case "type":
+		return p.Type
+	case "mfr":
+		return p.Mfr
+	case "mpn":
+		return p.MPN
+	case "desc":
+		return p.Desc
+	case "package":
+		return p.Package
+	case "datasheet":
+		return p.Datasheet
+	case "lifecycle":
+		return p.Lifecycle
+	case "fuse_std":
+		return p.FuseStd
+	case "rerate":
+		return p.Rerate
+	case "rohs":
+		return b(p.RoHS)
+	case "aecq":
+		return b(p.AECQ)
+	}
+	return ""
 }

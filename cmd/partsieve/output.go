@@ -1,0 +1,222 @@
+package main
+
+import (
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+
+	"partsieve/catalog"
+	"partsieve/catalog/units"
+)
+
+// table writes aligned columns for people.
+type table struct {
+	tw *tabwriter.Writer
+}
+
+func newTable(w io.Writer, headers ...string) *table {
+	t := &table{tw: tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)}
+	t.row(headers...)
+	return t
+}
+
+func (t *table) row(cells ...string) {
+	for i, c := range cells {
+		cells[i] = strings.NewReplacer("\t", " ", "\n", " ", "\r", " ").Replace(c)
+	}
+	fmt.Fprintln(t.tw, strings.Join(cells, "\t"))
+}
+
+func (t *table) flush() error { return t.tw.Flush() }
+
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
+	return enc.Encode(v)
+}
+
+// csvSafe neutralises text that a spreadsheet program would evaluate as a
+// formula (leading = + - @, tab or CR) by prefixing an apostrophe; plain
+// numbers written by us are left alone.
+func csvSafe(s string) string {
+	if s == "" {
+		return s
+	}
+	switch s[0] {
+	case '=', '+', '-', '@', '\t', '\r':
+		if _, err := strconv.ParseFloat(s, 64); err == nil {
+			return s
+		}
+		return "'" + s
+	}
+	return s
+}
+
+func writeCSV(w io.Writer, header []string, rows [][]string) error {
+	cw := csv.NewWriter(w)
+	if err := cw.Write(header); err != nil {
+		return err
+	}
+	for _, r := range rows {
+		safe := make([]string, len(r))
+		for i, c := range r {
+			safe[i] = csvSafe(c)
+		}
+		if err := cw.Write(safe); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// eng formats a field value of p for people ("45 mΩ"), "" when absent.
+func eng(p *catalog.Part, name string) string {
+	v, ok := p.Get(name)
+	if !ok {
+		return ""
+	}
+	f, _ := catalog.FieldByName(name)
+	return units.Format(v, f.Dim)
+}
+
+// machine formats a number in base SI units for CSV output.
+func machine(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// typeLabel is the kind and type as people say it.
+func typeLabel(p *catalog.Part) string {
+	switch p.Kind {
+	case catalog.MOSFET:
+		switch p.Type {
+		case "p":
+			return "P-MOSFET"
+		case "n":
+			return "N-MOSFET"
+		}
+		return "MOSFET"
+	case catalog.Fuse:
+		s := "fuse"
+		if p.Type != "" {
+			s += " " + p.Type
+		}
+		if p.FuseStd != "" {
+			s += " (" + p.FuseStd + ")"
+		}
+		return s
+	case catalog.Diode:
+		if p.Type != "" {
+			return p.Type
+		}
+		return "diode"
+	}
+	return string(p.Kind)
+}
+
+// keyRatings summarises the ratings that matter for the part's class.
+func keyRatings(p *catalog.Part) string {
+	var parts []string
+	add := func(label, name string) {
+		if s := eng(p, name); s != "" {
+			if label != "" {
+				s = label + " " + s
+			}
+			parts = append(parts, s)
+		}
+	}
+	at := func(label, name, cond string) {
+		s := eng(p, name)
+		if s == "" {
+			return
+		}
+		if c := eng(p, cond); c != "" {
+			s += " @ " + c
+		}
+		parts = append(parts, label+" "+s)
+	}
+	switch p.Kind {
+	case catalog.Diode:
+		switch p.Type {
+		case "zener":
+			s := eng(p, "vz")
+			if tol, ok := p.Get("vz_tol"); ok && s != "" {
+				s += " ±" + units.Format(tol, units.Fraction)
+			}
+			if s != "" {
+				parts = append(parts, "V_Z "+s)
+			}
+			add("P", "pd")
+		case "tvs":
+			add("V_RWM", "vrwm")
+			add("V_C", "vc")
+			add("P_PK", "ppk")
+		default:
+			add("V_RRM", "vrrm")
+			add("I_F(AV)", "ifav")
+			at("V_F", "vf", "vf_if")
+			add("I_FSM", "ifsm")
+		}
+	case catalog.MOSFET:
+		add("V_DS", "vds")
+		at("R_DS(on)", "rdson", "rdson_vgs")
+		add("I_D", "id")
+		add("V_GS max", "vgs_max")
+	case catalog.Fuse:
+		add("I_N", "in")
+		add("U_DC", "un_dc")
+		add("breaking", "breaking")
+		add("I²t", "i2t")
+	}
+	return strings.Join(parts, ", ")
+}
+
+// bestOffer returns the lowest single-piece price among the part's offers
+// (the price of the smallest break) with its currency, and the total stock.
+func bestOffer(p *catalog.Part) (price string, stock string) {
+	best, cur := math.Inf(1), ""
+	var total int64
+	known := false
+	for _, o := range p.Offers {
+		if o.Stock != nil {
+			total += *o.Stock
+			known = true
+		}
+		if len(o.Breaks) == 0 {
+			continue
+		}
+		b := o.Breaks
+		sort.Slice(b, func(i, j int) bool { return b[i].Qty < b[j].Qty })
+		if b[0].Price < best {
+			best, cur = b[0].Price, o.Currency
+		}
+	}
+	if !math.IsInf(best, 1) {
+		price = strings.TrimSpace(fmt.Sprintf("%s %s", money(best), cur))
+	}
+	if known {
+		stock = strconv.FormatInt(total, 10)
+	}
+	return price, stock
+}
+
+// money writes a unit price with enough digits for small parts.
+func money(v float64) string {
+	switch {
+	case v >= 100:
+		return strconv.FormatFloat(v, 'f', 2, 64)
+	case v >= 1:
+		return strconv.FormatFloat(v, 'f', 3, 64)
+	}
+	return strconv.FormatFloat(v, 'f', 4, 64)
+}
