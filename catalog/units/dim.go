@@ -1,11 +1,3 @@
-// Package units parses and formats engineering values: a number with an
-// optional SI prefix and unit symbol, as written in supplier spreadsheets
-// ("4R7", "45 mΩ", "0,33 A", "±20 V", "-55 to 150 °C").
-//
-// Every value is returned in the base SI unit of its dimension (V, A, W, Ω,
-// K/W, A²s, C, s), except temperature, which is returned in degrees Celsius
-// because every datasheet and standard in the trade states junction and
-// ambient temperatures in °C.
 package units
 
 // Dim is the physical dimension a field expects. Parsing is directed by the
@@ -98,3 +90,69 @@ const (
 	// Signed keeps a single value with its sign; a range is an error.
 	Signed
 )
+
+// AllDims lists every dimension in declaration order.
+func AllDims() []Dim {
+	return []Dim{None, Voltage, Current, Power, Resistance, Temperature, ThermalRes, I2t, Charge, Time, Fraction}
+}
+
+// valid reports whether d is one of the declared dimensions.
+func (d Dim) valid() bool { return d >= None && d <= Fraction }
+
+// Example is a short value of dimension d as a user would type it, for help
+// texts and error messages ("12 V", "45 mΩ", "150 °C").
+func (d Dim) Example() string {
+	switch d {
+	case Voltage:
+		return "12 V"
+	case Current:
+		return "3.2 A"
+	case Power:
+		return "500 mW"
+	case Resistance:
+		return "45 mΩ"
+	case Temperature:
+		return "150 °C"
+	case ThermalRes:
+		return "62.5 K/W"
+	case I2t:
+		return "1.5 A²s"
+	case Charge:
+		return "25 nC"
+	case Time:
+		return "8.3 ms"
+	case Fraction:
+		return "5 %"
+	}
+	return "2500"
+}
+
+// phrase names the dimension with its article for messages ("a voltage",
+// "an I²t", "a plain number").
+func (d Dim) phrase() string {
+	switch d {
+	case None:
+		return "a plain number"
+	case I2t:
+		return "an I²t"
+	}
+	if d.valid() {
+		return "a " + d.String()
+	}
+	return "an unknown dimension"
+}
+
+// String names the pick ("magnitude", "upper", "lower", "signed").
+func (p Pick) String() string {
+	switch p {
+	case Magnitude:
+		return "magnitude"
+	case Upper:
+		return "upper"
+	case Lower:
+		return "lower"
+	case Signed:
+		return "signed"
+	}
+	return "unknown pick"
+}
