@@ -1,0 +1,559 @@
+package catalog
+
+import (
+	"context"
+	"database/sql"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+	"time"
+)
+
+// ImportTx is one import: every Put of a file happens in one SQLite
+// transaction; Commit makes all of it visible at once, Rollback none.
+// An ImportTx is used from one goroutine.
+type ImportTx struct {
+	s       *Store
+	ctx     context.Context
+	tx      *sql.Tx
+	src     Source
+	srcID   int64
+	prevGen int64
+	now     int64
+	done    bool
+
+	added, updated, unchanged int
+	dirty                     bool    // some part or offer changed
+	textIDs                   []int64 // parts whose indexed text is new or changed
+
+	selPart, insPart, updPart, linkSrc         *sql.Stmt
+	selOffers, insOffer, updOffer, setOfferSrc *sql.Stmt
+
+	rs   *rowScanner
+	args []any
+}
+
+// BeginImport starts the transaction of one import from src (label, file,
+// hash). Only one import runs at a time; a second waits (busy timeout) or
+// fails with a clear message.
+//
+// The source is recorded by label: importing under an existing label
+// updates that source's record. src.Time defaults to now.
+func (s *Store) BeginImport(ctx context.Context, src Source) (*ImportTx, error) {
+	src.Label = strings.TrimSpace(src.Label)
+	if src.Label == "" {
+		return nil, errors.New("an import needs a source label")
+	}
+	if src.Time.IsZero() {
+		src.Time = time.Now()
+	}
+	tx, err := s.db.BeginTx(ctx, nil) // BEGIN IMMEDIATE (_txlock)
+	if err != nil {
+		if isBusy(err) {
+			return nil, fmt.Errorf("another import is writing to catalog %s; try again when it finishes", s.Path)
+		}
+		return nil, fmt.Errorf("catalog %s: cannot start the import: %w", s.Path, err)
+	}
+	t := &ImportTx{s: s, ctx: ctx, tx: tx, src: src, now: src.Time.Unix(), rs: newRowScanner(new(int64))}
+	if err := t.prepare(); err != nil {
+		tx.Rollback()
+		if isBusy(err) {
+			return nil, fmt.Errorf("another import is writing to catalog %s; try again when it finishes", s.Path)
+		}
+		return nil, fmt.Errorf("catalog %s: cannot start the import: %w", s.Path, err)
+	}
+	return t, nil
+}
+
+func (t *ImportTx) prepare() error {
+	ctx := t.ctx
+	var err error
+	if t.prevGen, err = generation(ctx, t.tx); err != nil {
+		return err
+	}
+	err = t.tx.QueryRowContext(ctx, `INSERT INTO sources(label, file, sha256, time) VALUES (?, ?, ?, ?)
+		ON CONFLICT(label) DO UPDATE SET label = excluded.label RETURNING id`,
+		t.src.Label, t.src.File, t.src.SHA256, t.src.Time.UTC().Format(time.RFC3339Nano)).Scan(&t.srcID)
+	if err != nil {
+		return err
+	}
+	var cols, marks, sets strings.Builder
+	for i, f := range Fields {
+		c := `"` + colName(f.Name) + `"`
+		cols.WriteString(", " + c)
+		marks.WriteString(", ?")
+		if i > 0 {
+			sets.WriteString(", ")
+		}
+		sets.WriteString(c + " = ?")
+	}
+	prep := func(dst **sql.Stmt, q string) {
+		if err != nil {
+			return
+		}
+		*dst, err = t.tx.PrepareContext(ctx, q)
+	}
+	prep(&t.selPart, `SELECT parts.id, `+fieldColumns+` FROM parts WHERE mpn_key = ? AND mfr_key = ?`)
+	prep(&t.insPart, `INSERT INTO parts(mfr_key, mpn_key`+cols.String()+`, created, updated) VALUES (?, ?`+marks.String()+`, ?, ?)`)
+	prep(&t.updPart, `UPDATE parts SET `+sets.String()+`, updated = ? WHERE id = ?`)
+	prep(&t.linkSrc, `INSERT OR IGNORE INTO part_sources(part_id, source_id) VALUES (?, ?)`)
+	prep(&t.selOffers, `SELECT id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id FROM offers WHERE part_id = ?`)
+	prep(&t.insOffer, `INSERT INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`)
+	prep(&t.updOffer, `UPDATE offers SET stock = ?, moq = ?, currency = ?, breaks = ?, source_id = ? WHERE id = ?`)
+	prep(&t.setOfferSrc, `UPDATE offers SET source_id = ? WHERE id = ?`)
+	t.args = make([]any, 0, len(Fields)+4)
+	return err
+}
+
+var errFinished = errors.New("the import is already committed or rolled back")
+
+// textFields are the fields the text index holds; a change to one of them
+// re-indexes the part.
+var textFields = map[string]bool{"kind": true, "type": true, "mfr": true, "mpn": true, "desc": true, "package": true}
+
+// Put inserts or updates p and its offers (p.Offers, matched on supplier
+// and SKU). It returns Unchanged when nothing differs, Updated with the list
+// of changed fields otherwise.
+//
+// The part is found by (NormKey(Mfr), NormKey(MPN)). A field absent from p
+// never erases a stored value (a sheet without that column keeps what the
+// catalog knows); a present value that differs replaces it and is listed.
+// When the kind changes, stored fields that do not apply to the new kind
+// are cleared and listed. The stored spelling of Mfr and MPN is kept.
+// Offers merge the same way: stock, MOQ, currency and price breaks given
+// in p replace stored ones; an offer belongs to the last source that wrote
+// it.
+//
+// An invalid part (empty manufacturer or part number, unknown kind, type
+// or enum word, non-finite number, field that does not apply to the kind,
+// bad offer) returns an error before anything is written: the import can
+// go on with the next part.
+func (t *ImportTx) Put(p *Part) (Outcome, []Change, error) {
+	if t.done {
+		return 0, nil, errFinished
+	}
+	nr, err := partRow(p)
+	if err != nil {
+		return 0, nil, err
+	}
+	offers, err := normOffers(p)
+	if err != nil {
+		return 0, nil, err
+	}
+	mk, pk := NormKey(p.Mfr), NormKey(p.MPN)
+	var id int64
+	err = t.selPart.QueryRowContext(t.ctx, pk, mk).Scan(t.rs.dest...)
+	if errors.Is(err, sql.ErrNoRows) {
+		return t.insert(mk, pk, nr, offers)
+	}
+	if err != nil {
+		return 0, nil, t.fail(err)
+	}
+	id = *t.rs.dest[0].(*int64)
+	old := t.rs.row()
+	merged, changes := mergeRows(old, nr)
+	mfr, mpn := old[fieldIndex["mfr"]].(string), old[fieldIndex["mpn"]].(string)
+	for i := range changes {
+		changes[i].Mfr, changes[i].MPN = mfr, mpn
+	}
+	if len(changes) > 0 {
+		t.args = append(t.args[:0], merged...)
+		t.args = append(t.args, t.now, id)
+		if _, err := t.updPart.ExecContext(t.ctx, t.args...); err != nil {
+			return 0, nil, t.fail(err)
+		}
+		for _, c := range changes {
+			if textFields[c.Field] {
+				t.textIDs = append(t.textIDs, id)
+				break
+			}
+		}
+	}
+	if _, err := t.linkSrc.ExecContext(t.ctx, id, t.srcID); err != nil {
+		return 0, nil, t.fail(err)
+	}
+	if len(offers) > 0 {
+		oc, err := t.mergeOffers(id, offers)
+		if err != nil {
+			return 0, nil, t.fail(err)
+		}
+		for i := range oc {
+			oc[i].Mfr, oc[i].MPN = mfr, mpn
+		}
+		changes = append(changes, oc...)
+	}
+	if len(changes) == 0 {
+		t.unchanged++
+		return Unchanged, nil, nil
+	}
+	t.updated++
+	t.dirty = true
+	return Updated, changes, nil
+}
+
+func (t *ImportTx) fail(err error) error {
+	return fmt.Errorf("catalog %s: %w", t.s.Path, err)
+}
+
+func (t *ImportTx) insert(mk, pk string, r row, offers []offerRow) (Outcome, []Change, error) {
+	t.args = append(t.args[:0], mk, pk)
+	t.args = append(t.args, r...)
+	t.args = append(t.args, t.now, t.now)
+	res, err := t.insPart.ExecContext(t.ctx, t.args...)
+	if err != nil {
+		return 0, nil, t.fail(err)
+	}
+	id, err := res.LastInsertId()
+	if err != nil {
+		return 0, nil, t.fail(err)
+	}
+	if _, err := t.linkSrc.ExecContext(t.ctx, id, t.srcID); err != nil {
+		return 0, nil, t.fail(err)
+	}
+	for i := range offers {
+		if err := t.insertOffer(id, &offers[i]); err != nil {
+			return 0, nil, t.fail(err)
+		}
+	}
+	t.added++
+	t.dirty = true
+	t.textIDs = append(t.textIDs, id)
+	return Added, nil, nil
+}
+
+// mergeRows merges the new row nr over the stored row old: present values
+// replace, absent ones keep. It returns the merged row and the changes
+// (Mfr and MPN not yet filled).
+func mergeRows(old, nr row) (row, []Change) {
+	merged := make(row, len(old))
+	var changes []Change
+	for i := range Fields {
+		merged[i] = old[i]
+		if nr[i] != nil && !sameValue(old[i], nr[i]) {
+			merged[i] = nr[i]
+			f := &Fields[i]
+			if f.Name == "mfr" || f.Name == "mpn" {
+				// same key, other spelling: keep the stored one
+				merged[i] = old[i]
+				continue
+			}
+			changes = append(changes, Change{Field: f.Name, Old: formatValue(f, old[i]), New: formatValue(f, nr[i])})
+		}
+	}
+	ki := fieldIndex["kind"]
+	if merged[ki] != old[ki] {
+		kind := Kind(merged[ki].(string))
+		for i := range Fields {
+			f := &Fields[i]
+			if merged[i] == nil || nr[i] != nil {
+				continue
+			}
+			drop := !f.AppliesTo(kind)
+			if f.Name == "type" {
+				_, ok := canonEnum(&Field{Enum: Types[kind]}, merged[i].(string))
+				drop = !ok
+			}
+			if drop {
+				changes = append(changes, Change{Field: f.Name, Old: formatValue(f, merged[i])})
+				merged[i] = nil
+			}
+		}
+	}
+	return merged, changes
+}
+
+// offerRow is a validated offer.
+type offerRow struct {
+	supplier, supKey, sku string
+	stock                 *int64
+	moq                   int64
+	currency              string
+	breaks                string // canonical JSON, "" when none given
+}
+
+func (o *offerRow) label() string {
+	if o.sku == "" {
+		return "offer " + o.supplier
+	}
+	return "offer " + o.supplier + "/" + o.sku
+}
+
+// normOffers validates the offers of p.
+func normOffers(p *Part) ([]offerRow, error) {
+	var out []offerRow
+	for i, o := range p.Offers {
+		who := fmt.Sprintf("part %s %s: offer %d", strings.TrimSpace(p.Mfr), strings.TrimSpace(p.MPN), i+1)
+		r := offerRow{supplier: strings.TrimSpace(o.Supplier), sku: strings.TrimSpace(o.SKU),
+			moq: o.MOQ, currency: strings.ToUpper(strings.TrimSpace(o.Currency))}
+		r.supKey = NormKey(r.supplier)
+		if r.supKey == "" {
+			return nil, fmt.Errorf("%s has no supplier", who)
+		}
+		if o.Stock != nil {
+			if *o.Stock < 0 {
+				return nil, fmt.Errorf("%s: stock %d is negative", who, *o.Stock)
+			}
+			v := *o.Stock
+			r.stock = &v
+		}
+		if o.MOQ < 0 {
+			return nil, fmt.Errorf("%s: MOQ %d is negative", who, o.MOQ)
+		}
+		if len(o.Breaks) > 0 {
+			s, err := encodeBreaks(o.Breaks)
+			if err != nil {
+				return nil, fmt.Errorf("%s: %v", who, err)
+			}
+			r.breaks = s
+		}
+		out = append(out, r)
+	}
+	return out, nil
+}
+
+// encodeBreaks validates price breaks and writes them as canonical JSON
+// [[qty, price], ...] in ascending quantity.
+func encodeBreaks(bs []PriceBreak) (string, error) {
+	s := append([]PriceBreak(nil), bs...)
+	sort.SliceStable(s, func(i, j int) bool { return s[i].Qty < s[j].Qty })
+	var b []byte
+	b = append(b, '[')
+	for i, x := range s {
+		if x.Qty < 1 {
+			return "", fmt.Errorf("price break quantity %d is less than 1", x.Qty)
+		}
+		if math.IsNaN(x.Price) || math.IsInf(x.Price, 0) || x.Price < 0 {
+			return "", fmt.Errorf("price %v at quantity %d is not a price", x.Price, x.Qty)
+		}
+		if i > 0 && s[i-1].Qty == x.Qty {
+			if s[i-1].Price != x.Price {
+				return "", fmt.Errorf("price break quantity %d is given twice with different prices", x.Qty)
+			}
+			continue
+		}
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = append(b, '[')
+		b = strconv.AppendInt(b, x.Qty, 10)
+		b = append(b, ',')
+		b = strconv.AppendFloat(b, x.Price, 'g', -1, 64)
+		b = append(b, ']')
+	}
+	b = append(b, ']')
+	return string(b), nil
+}
+
+func decodeBreaks(s string) ([]PriceBreak, error) {
+	var raw [][2]float64
+	if err := json.Unmarshal([]byte(s), &raw); err != nil {
+		return nil, err
+	}
+	if len(raw) == 0 {
+		return nil, nil
+	}
+	out := make([]PriceBreak, len(raw))
+	for i, x := range raw {
+		out[i] = PriceBreak{Qty: int64(x[0]), Price: x[1]}
+	}
+	return out, nil
+}
+
+// breaksText is the display text of canonical breaks: "1: 0.12, 100: 0.08".
+func breaksText(s string) string {
+	bs, err := decodeBreaks(s)
+	if err != nil {
+		return s
+	}
+	parts := make([]string, len(bs))
+	for i, b := range bs {
+		parts[i] = strconv.FormatInt(b.Qty, 10) + ": " + strconv.FormatFloat(b.Price, 'g', -1, 64)
+	}
+	return strings.Join(parts, ", ")
+}
+
+func (t *ImportTx) insertOffer(partID int64, o *offerRow) error {
+	br := o.breaks
+	if br == "" {
+		br = "[]"
+	}
+	var stock any
+	if o.stock != nil {
+		stock = *o.stock
+	}
+	_, err := t.insOffer.ExecContext(t.ctx, partID, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br, t.srcID)
+	return err
+}
+
+type storedOffer struct {
+	id       int64
+	supplier string
+	stock    sql.NullInt64
+	moq      int64
+	currency string
+	breaks   string
+	source   sql.NullInt64
+}
+
+// mergeOffers merges offers into the stored offers of part id.
+func (t *ImportTx) mergeOffers(id int64, offers []offerRow) ([]Change, error) {
+	rows, err := t.selOffers.QueryContext(t.ctx, id)
+	if err != nil {
+		return nil, err
+	}
+	stored := map[[2]string]*storedOffer{}
+	for rows.Next() {
+		var so storedOffer
+		var sk, sku string
+		if err := rows.Scan(&so.id, &so.supplier, &sk, &sku, &so.stock, &so.moq, &so.currency, &so.breaks, &so.source); err != nil {
+			rows.Close()
+			return nil, err
+		}
+		stored[[2]string{sk, sku}] = &so
+	}
+	rows.Close()
+	if err := rows.Err(); err != nil {
+		return nil, err
+	}
+	var changes []Change
+	for i := range offers {
+		o := &offers[i]
+		so := stored[[2]string{o.supKey, o.sku}]
+		if so == nil {
+			if err := t.insertOffer(id, o); err != nil {
+				return nil, err
+			}
+			changes = append(changes, Change{Field: o.label(), New: "added"})
+			continue
+		}
+		var ch []Change
+		lbl := "offer " + so.supplier
+		if o.sku != "" {
+			lbl += "/" + o.sku
+		}
+		stock := so.stock
+		if o.stock != nil && (!so.stock.Valid || so.stock.Int64 != *o.stock) {
+			ch = append(ch, Change{Field: lbl + " stock", Old: nullIntText(so.stock), New: strconv.FormatInt(*o.stock, 10)})
+			stock = sql.NullInt64{Int64: *o.stock, Valid: true}
+		}
+		moq := so.moq
+		if o.moq != 0 && o.moq != so.moq {
+			ch = append(ch, Change{Field: lbl + " moq", Old: intText(so.moq), New: strconv.FormatInt(o.moq, 10)})
+			moq = o.moq
+		}
+		cur := so.currency
+		if o.currency != "" && o.currency != so.currency {
+			ch = append(ch, Change{Field: lbl + " currency", Old: so.currency, New: o.currency})
+			cur = o.currency
+		}
+		br := so.breaks
+		if o.breaks != "" && o.breaks != so.breaks {
+			ch = append(ch, Change{Field: lbl + " price_breaks", Old: breaksText(so.breaks), New: breaksText(o.breaks)})
+			br = o.breaks
+		}
+		switch {
+		case len(ch) > 0:
+			var sv any
+			if stock.Valid {
+				sv = stock.Int64
+			}
+			if _, err := t.updOffer.ExecContext(t.ctx, sv, moq, cur, br, t.srcID, so.id); err != nil {
+				return nil, err
+			}
+			// a later offer in the same Put sees the merged values
+			so.stock, so.moq, so.currency, so.breaks = stock, moq, cur, br
+			changes = append(changes, ch...)
+		case !so.source.Valid || so.source.Int64 != t.srcID:
+			if _, err := t.setOfferSrc.ExecContext(t.ctx, t.srcID, so.id); err != nil {
+				return nil, err
+			}
+		}
+		so.source = sql.NullInt64{Int64: t.srcID, Valid: true}
+	}
+	return changes, nil
+}
+
+func nullIntText(v sql.NullInt64) string {
+	if !v.Valid {
+		return ""
+	}
+	return strconv.FormatInt(v.Int64, 10)
+}
+
+func intText(v int64) string {
+	if v == 0 {
+		return ""
+	}
+	return strconv.FormatInt(v, 10)
+}
+
+// Counts returns what the Puts so far did: Added, Updated, Unchanged.
+func (t *ImportTx) Counts() Source {
+	c := t.src
+	c.Added, c.Updated, c.Unchanged = t.added, t.updated, t.unchanged
+	return c
+}
+
+// Commit records the source with its counts, commits, then brings the text
+// index up to date.
+//
+// The source record takes Read and Rejected from counts (and File and
+// SHA256 when counts gives them); Added, Updated and Unchanged are the
+// store's own tallies of the Puts. The catalog generation is incremented
+// only when a part or offer changed, so re-importing the same file leaves
+// the catalog (and its index) as it was. A failure to update the text
+// index does not undo the commit: the index is then stale and is rebuilt
+// on its next use.
+func (t *ImportTx) Commit(counts Source) error {
+	if t.done {
+		return errFinished
+	}
+	t.done = true
+	ctx := t.ctx
+	newGen := t.prevGen
+	if t.dirty {
+		newGen++
+		if err := setGeneration(ctx, t.tx, newGen); err != nil {
+			t.tx.Rollback()
+			return t.fail(err)
+		}
+	}
+	file, sha := t.src.File, t.src.SHA256
+	if counts.File != "" {
+		file = counts.File
+	}
+	if counts.SHA256 != "" {
+		sha = counts.SHA256
+	}
+	read := counts.Read
+	if read == 0 {
+		read = t.added + t.updated + t.unchanged + counts.Rejected
+	}
+	_, err := t.tx.ExecContext(ctx, `UPDATE sources SET file = ?, sha256 = ?, time = ?, n_read = ?, n_added = ?, n_updated = ?, n_unchanged = ?, n_rejected = ? WHERE id = ?`,
+		file, sha, t.src.Time.UTC().Format(time.RFC3339Nano), read, t.added, t.updated, t.unchanged, counts.Rejected, t.srcID)
+	if err != nil {
+		t.tx.Rollback()
+		return t.fail(err)
+	}
+	if err := t.tx.Commit(); err != nil {
+		return fmt.Errorf("catalog %s: the import could not be committed: %w", t.s.Path, err)
+	}
+	if t.dirty {
+		t.s.updateIndex(ctx, t.prevGen, newGen, t.textIDs, nil)
+	}
+	return nil
+}
+
+// Rollback abandons the import; the catalog is exactly as before. It is a
+// no-op after Commit, so it can be deferred.
+func (t *ImportTx) Rollback() error {
+	if t.done {
+		return nil
+	}
+	t.done = true
+	return t.tx.Rollback()
+}

@@ -1,0 +1,332 @@
+package catalog
+
+import (
+	"database/sql"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"partsieve/catalog/units"
+)
+
+// A row is the value of every field of a part, in dictionary order: nil
+// (absent), float64 (Number), string (Text, Enum) or int64 0/1 (Bool).
+type row []any
+
+// textOf returns the Text or Enum field name of p.
+func textOf(p *Part, name string) string {
+	switch name {
+	case "kind":
+		return string(p.Kind)
+	case "type":
+		return p.Type
+	case "mfr":
+		return p.Mfr
+	case "mpn":
+		return p.MPN
+	case "desc":
+		return p.Desc
+	case "package":
+		return p.Package
+	case "datasheet":
+		return p.Datasheet
+	case "lifecycle":
+		return p.Lifecycle
+	case "fuse_std":
+		return p.FuseStd
+	case "rerate":
+		return p.Rerate
+	}
+	return ""
+}
+
+func setText(p *Part, name, v string) {
+	switch name {
+	case "kind":
+		p.Kind = Kind(v)
+	case "type":
+		p.Type = v
+	case "mfr":
+		p.Mfr = v
+	case "mpn":
+		p.MPN = v
+	case "desc":
+		p.Desc = v
+	case "package":
+		p.Package = v
+	case "datasheet":
+		p.Datasheet = v
+	case "lifecycle":
+		p.Lifecycle = v
+	case "fuse_std":
+		p.FuseStd = v
+	case "rerate":
+		p.Rerate = v
+	}
+}
+
+func boolOf(p *Part, name string) *bool {
+	switch name {
+	case "rohs":
+		return p.RoHS
+	case "aecq":
+		return p.AECQ
+	}
+	return nil
+}
+
+func setBool(p *Part, name string, v *bool) {
+	switch name {
+	case "rohs":
+		p.RoHS = v
+	case "aecq":
+		p.AECQ = v
+	}
+}
+
+// hasAccessor reports whether a non-Number field has a Part struct field;
+// the tests check it for the whole dictionary.
+func hasAccessor(name string) bool {
+	switch name {
+	case "kind", "type", "mfr", "mpn", "desc", "package", "datasheet", "lifecycle", "fuse_std", "rerate", "rohs", "aecq":
+		return true
+	}
+	return false
+}
+
+// canonEnum returns the dictionary spelling of an Enum value, matched case
+// insensitively.
+func canonEnum(f *Field, v string) (string, bool) {
+	for _, e := range f.Enum {
+		if strings.EqualFold(e, v) {
+			return e, true
+		}
+	}
+	return "", false
+}
+
+// partRow validates p and returns its row. Text is trimmed; Enum values
+// take their dictionary spelling; the type must belong to the kind; Number
+// fields must exist, be finite and apply to the kind.
+func partRow(p *Part) (row, error) {
+	who := func() string { return strings.TrimSpace(p.Mfr) + " " + strings.TrimSpace(p.MPN) }
+	if NormKey(p.Mfr) == "" {
+		return nil, fmt.Errorf("part %q: manufacturer is empty", strings.TrimSpace(p.MPN))
+	}
+	if NormKey(p.MPN) == "" {
+		return nil, fmt.Errorf("part of %q: part number is empty", strings.TrimSpace(p.Mfr))
+	}
+	kindF := &Fields[fieldIndex["kind"]]
+	k, ok := canonEnum(kindF, strings.TrimSpace(string(p.Kind)))
+	if !ok {
+		return nil, fmt.Errorf("part %s: kind %q is not one of %s", who(), p.Kind, strings.Join(kindF.Enum, ", "))
+	}
+	kind := Kind(k)
+	r := make(row, len(Fields))
+	for i := range Fields {
+		f := &Fields[i]
+		switch f.Type {
+		case Number:
+			v, ok := p.Num[f.Name]
+			if !ok {
+				continue
+			}
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return nil, fmt.Errorf("part %s: %s is not a finite number", who(), f.Name)
+			}
+			if !f.AppliesTo(kind) {
+				return nil, fmt.Errorf("part %s: field %s does not apply to a %s", who(), f.Name, kind)
+			}
+			r[i] = v
+		case Bool:
+			if b := boolOf(p, f.Name); b != nil {
+				r[i] = b2i(*b)
+			}
+		case Text, Enum:
+			v := strings.TrimSpace(textOf(p, f.Name))
+			if v == "" {
+				continue
+			}
+			if f.Type == Enum {
+				c, ok := canonEnum(f, v)
+				if !ok {
+					return nil, fmt.Errorf("part %s: %s %q is not one of %s", who(), f.Name, v, strings.Join(f.Enum, ", "))
+				}
+				v = c
+			}
+			if !f.AppliesTo(kind) {
+				return nil, fmt.Errorf("part %s: field %s does not apply to a %s", who(), f.Name, kind)
+			}
+			r[i] = v
+		}
+	}
+	if t, ok := r[fieldIndex["type"]].(string); ok {
+		if _, ok := canonEnum(&Field{Enum: Types[kind]}, t); !ok {
+			return nil, fmt.Errorf("part %s: type %q is not a %s type (one of %s)", who(), t, kind, strings.Join(Types[kind], ", "))
+		}
+	}
+	for name := range p.Num {
+		f, ok := FieldByName(name)
+		if !ok || f.Type != Number {
+			return nil, fmt.Errorf("part %s: %q is not a numeric field", who(), name)
+		}
+	}
+	return r, nil
+}
+
+func b2i(b bool) int64 {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// toPart fills a Part from a row (offers not included).
+func toPart(r row) Part {
+	var p Part
+	for i := range Fields {
+		f := &Fields[i]
+		switch v := r[i].(type) {
+		case float64:
+			p.Set(f.Name, v)
+		case string:
+			setText(&p, f.Name, v)
+		case int64:
+			b := v != 0
+			setBool(&p, f.Name, &b)
+		}
+	}
+	return p
+}
+
+// scanDest returns scan destinations for a row and a function that reads
+// them back into r.
+type rowScanner struct {
+	nums  []sql.NullFloat64
+	strs  []sql.NullString
+	ints  []sql.NullInt64
+	dest  []any
+	slots []int // per field: index into nums/strs/ints
+}
+
+func newRowScanner(extra ...any) *rowScanner {
+	rs := &rowScanner{slots: make([]int, len(Fields))}
+	for _, f := range Fields {
+		switch f.Type {
+		case Number:
+			rs.nums = append(rs.nums, sql.NullFloat64{})
+		case Bool:
+			rs.ints = append(rs.ints, sql.NullInt64{})
+		default:
+			rs.strs = append(rs.strs, sql.NullString{})
+		}
+	}
+	rs.dest = append(rs.dest, extra...)
+	var n, s, b int
+	for i, f := range Fields {
+		switch f.Type {
+		case Number:
+			rs.dest = append(rs.dest, &rs.nums[n])
+			rs.slots[i] = n
+			n++
+		case Bool:
+			rs.dest = append(rs.dest, &rs.ints[b])
+			rs.slots[i] = b
+			b++
+		default:
+			rs.dest = append(rs.dest, &rs.strs[s])
+			rs.slots[i] = s
+			s++
+		}
+	}
+	return rs
+}
+
+// row converts the last scanned values.
+func (rs *rowScanner) row() row {
+	r := make(row, len(Fields))
+	for i, f := range Fields {
+		j := rs.slots[i]
+		switch f.Type {
+		case Number:
+			if rs.nums[j].Valid {
+				r[i] = rs.nums[j].Float64
+			}
+		case Bool:
+			if rs.ints[j].Valid {
+				r[i] = rs.ints[j].Int64
+			}
+		default:
+			if rs.strs[j].Valid && rs.strs[j].String != "" {
+				r[i] = rs.strs[j].String
+			}
+		}
+	}
+	return r
+}
+
+// fieldColumns is the comma-separated list of the parts field columns in
+// dictionary order, qualified by the table.
+var fieldColumns = fieldColumnList()
+
+func fieldColumnList() string {
+	var b strings.Builder
+	for i, f := range Fields {
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString(qcol(f.Name))
+	}
+	return b.String()
+}
+
+// sameValue compares two row values; numbers are equal within a relative
+// 1e-9 (parse noise such as 45e-3 vs 0.045).
+func sameValue(a, b any) bool {
+	switch x := a.(type) {
+	case nil:
+		return b == nil
+	case float64:
+		y, ok := b.(float64)
+		return ok && closeEnough(x, y)
+	}
+	return a == b
+}
+
+const relTol = 1e-9
+
+func closeEnough(x, y float64) bool {
+	if x == y {
+		return true
+	}
+	return math.Abs(x-y) <= relTol*math.Max(math.Abs(x), math.Abs(y))
+}
+
+// formatValue is the display text of a row value of f ("" when absent).
+func formatValue(f *Field, v any) string {
+	switch x := v.(type) {
+	case nil:
+		return ""
+	case float64:
+		if s := units.Format(x, f.Dim); s != "" {
+			return s
+		}
+		if f.Dim == units.Fraction {
+			return strconv.FormatFloat(x*100, 'g', 6, 64) + " %"
+		}
+		s := strconv.FormatFloat(x, 'g', -1, 64)
+		if sym := f.Dim.Symbol(); sym != "" {
+			s += " " + sym
+		}
+		return s
+	case int64:
+		if x != 0 {
+			return "yes"
+		}
+		return "no"
+	case string:
+		return x
+	}
+	return fmt.Sprint(v)
+}
