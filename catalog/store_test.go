@@ -179,7 +179,7 @@ func TestMigrationBackup(t *testing.T) {
 		return err
 	}
 	s2 := openAt(t, path)
-	var ver int
+	ver = 0
 	s2.db.QueryRow(`PRAGMA user_version`).Scan(&ver)
 	if ver != 2 {
 		t.Errorf("user_version after migration = %d", ver)
