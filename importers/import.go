@@ -169,7 +169,7 @@ func importAt(ctx context.Context, st *catalog.Store, name string, r io.ReaderAt
 	defer book.Close()
 
 	rn := &run{ctx: ctx, name: name, opt: opt, m: m, label: label, cr: cr, size: size,
-		sum: &Summary{File: name, Unknown: []string{}, Rejects: []Reject{}, DryRun: opt.DryRun || st == nil},
+		sum:  &Summary{File: name, Unknown: []string{}, Rejects: []Reject{}, DryRun: opt.DryRun || st == nil},
 		prog: newProgress(opt.Progress, size)}
 	defer rn.prog.done()
 	src := catalog.Source{Label: label, File: name, SHA256: hash, Time: time.Now().UTC()}
