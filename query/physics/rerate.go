@@ -241,4 +241,3 @@ func (c RerateCurve) String() string {
 	}
 	return b.String()
 }
-
