@@ -27,11 +27,13 @@ func TestHotPathsDoNotAllocate(t *testing.T) {
 		"DiodeTj":       func() { sink = physics.DiodeTj(&m, 5, 85, 60, physics.SolveOptions{}).Tj },
 		"FETTj":         func() { sink = physics.FETTj(0.01, 0.4, 5, 85, 50, physics.SolveOptions{}).Tj },
 		"ReverseBiasTj": func() { sink = physics.ReverseBiasTj(leak, 11, 60, 25, 0, physics.SolveOptions{}).Tj },
-		"closure":       func() { sink = physics.SolveTj(25, 10, physics.PowerFunc(func(tj float64) float64 { return 0.01 * tj }), physics.SolveOptions{}).Tj },
-		"RdsonAt":       func() { r, _, _ := g.RdsonAt(6); sink = r },
-		"RerateFactor":  func() { f, _ := rer.Factor(70); sink = f },
-		"ParseRerate":   func() { c, _ := physics.ParseRerate("25:1, 65:0.9, 85:0.8"); sink = float64(c.Len()) },
-		"PulseFactor":   func() { f, _ := physics.LittelfusePulseTable.Factor(3e4); sink = f },
+		"closure": func() {
+			sink = physics.SolveTj(25, 10, physics.PowerFunc(func(tj float64) float64 { return 0.01 * tj }), physics.SolveOptions{}).Tj
+		},
+		"RdsonAt":      func() { r, _, _ := g.RdsonAt(6); sink = r },
+		"RerateFactor": func() { f, _ := rer.Factor(70); sink = f },
+		"ParseRerate":  func() { c, _ := physics.ParseRerate("25:1, 65:0.9, 85:0.8"); sink = float64(c.Len()) },
+		"PulseFactor":  func() { f, _ := physics.LittelfusePulseTable.Factor(3e4); sink = f },
 	}
 	for name, fn := range fns {
 		if a := testing.AllocsPerRun(100, fn); a != 0 {
