@@ -101,9 +101,9 @@ func commercial() Profile {
 	p.KVGS = p.KVGS.set(0.80, physics.Memory, srcCommercial, "commercial column: 80 %")
 	p.KID = p.KID.set(0.80, physics.Memory, srcCommercial, "commercial column: 80 %")
 	p.KPD = p.KPD.set(1.00, physics.Memory, srcTool, "no commercial value published; the junction-temperature limit governs")
-	p.KFuseUL = p.KFuseUL.set(0.75, physics.Verified, srcLittelfuse, "UL 248-14 fuses carry 75 % of rating at 25 °C")
-	p.KFuseIEC = p.KFuseIEC.set(1.00, physics.Verified, srcSchurter, "IEC 60127 fuses may carry 100 % of I_n at 23–25 °C")
-	p.KFuseBlade = p.KFuseBlade.set(0.75, physics.Memory, srcTool, "from memory: blade fuses treated like the UL 75 % rule")
+	p.KFuseUL = p.KFuseUL.set(physics.ULContinuousFactor, physics.Verified, srcLittelfuse, "UL 248-14 fuses carry 75 % of rating at 25 °C")
+	p.KFuseIEC = p.KFuseIEC.set(physics.IECContinuousFactor, physics.Verified, srcSchurter, "IEC 60127 fuses may carry 100 % of I_n at 23–25 °C")
+	p.KFuseBlade = p.KFuseBlade.set(physics.BladeContinuousFactor, physics.Memory, srcTool, "from memory: blade fuses treated like the UL 75 % rule")
 	return p
 }
 

@@ -45,6 +45,32 @@ func ParseFuseStd(s string) (FuseStd, error) {
 	return FuseIEC, fmt.Errorf("unknown fuse rating convention %q (want iec, ul or blade)", s)
 }
 
+// Continuous-current factors of the rating conventions (REFERENCE §4.3),
+// the makers' own rules; derating profiles may ask for less.
+const (
+	// ULContinuousFactor: UL-style fuses carry ≤ 75 % of rating at 25 °C
+	// [V Littelfuse Fuseology; EDN 1996].
+	ULContinuousFactor = 0.75
+	// IECContinuousFactor: IEC 60127-style fuses may carry 100 % of I_n
+	// [V Schurter]; many makers still advise ≤ 80 % [M].
+	IECContinuousFactor = 1.0
+	// BladeContinuousFactor: blade fuses treated like the UL rule [M, from
+	// memory; not in REFERENCE §4.3].
+	BladeContinuousFactor = 0.75
+)
+
+// ContinuousFactor returns the convention's continuous-current factor
+// K_std with its confidence tag and source.
+func ContinuousFactor(std FuseStd) (k float64, tag Tag, source string) {
+	switch std {
+	case FuseUL:
+		return ULContinuousFactor, Verified, "Littelfuse Fuseology: UL-style fuses ≤ 75 % of rating"
+	case FuseBlade:
+		return BladeContinuousFactor, Memory, "from memory: blade fuses treated like the UL 75 % rule"
+	}
+	return IECContinuousFactor, Verified, "Schurter Guide to Fuse Selection: IEC 60127 fuses may carry 100 % of I_n"
+}
+
 // RequiredFuseRating returns the smallest rated current I_n (A) that may
 // carry the operating current iop (A) continuously (REFERENCE §4.3, AEM
 // thin-film fuse selection rule) [V]:

@@ -74,8 +74,12 @@ const (
 
 // JunctionResult is the outcome of SolveTj.
 type JunctionResult struct {
-	Tj         float64 // junction temperature, °C (at the cap, or last iterate, when not stable)
-	P          float64 // dissipation at Tj, W
+	// Tj is the junction temperature (°C): the fixed point; the cap for
+	// RunawayCap; the last iterate for NoConvergence.
+	Tj float64
+	// P is the dissipation (W) at Tj; for RunawayCap the loss at the last
+	// iterate below the cap.
+	P          float64
 	Iterations int
 	Stable     bool
 	// LoopGain is R_th·dP/dT_j at Tj (dimensionless): below 1 the point is
@@ -149,7 +153,7 @@ func SolveTj[H Heater](ta, rth float64, h H, opt SolveOptions) JunctionResult {
 			g = 0
 		}
 		if next > tcap {
-			return JunctionResult{Tj: next, P: p, Iterations: k, LoopGain: math.Inf(1),
+			return JunctionResult{Tj: tcap, P: p, Iterations: k, LoopGain: math.Inf(1),
 				Status: RunawayCap, Reason: RunawayCap.String()}
 		}
 		t = next
