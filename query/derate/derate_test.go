@@ -325,3 +325,38 @@ func TestFactorString(t *testing.T) {
 		t.Errorf("String = %q", s)
 	}
 }
+
+// FuzzWithOverrides: never panics; an accepted override lands in range and
+// is tagged [U]; a refused one leaves the profile unchanged.
+func FuzzWithOverrides(f *testing.F) {
+	f.Add("k_vrrm", 0.7)
+	f.Add("vf_tc", -0.001)
+	f.Add("K_VRM", 2.0)
+	f.Add("", 0.0)
+	f.Add("tj_margin", 1e300)
+	com, err := derate.Lookup("commercial")
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Fuzz(func(t *testing.T, name string, v float64) {
+		p, err := com.WithOverrides(map[string]float64{name: v})
+		if err != nil {
+			if p.KVRRM != com.KVRRM || p.TjLimit != com.TjLimit {
+				t.Fatal("profile changed on error")
+			}
+			return
+		}
+		changed := 0
+		for _, fc := range p.Factors() {
+			if fc.Tag == physics.User {
+				changed++
+				if fc.Value != v || fc.Value < fc.Min || fc.Value > fc.Max {
+					t.Fatalf("%s = %g outside %g…%g", fc.Name, fc.Value, fc.Min, fc.Max)
+				}
+			}
+		}
+		if changed == 0 {
+			t.Fatalf("override %q = %g accepted but nothing changed", name, v)
+		}
+	})
+}

@@ -331,3 +331,19 @@ func FuzzParseRerate(f *testing.F) {
 		}
 	})
 }
+
+// FuzzParseFuseStd: never panics; accepted words round-trip through String.
+func FuzzParseFuseStd(f *testing.F) {
+	for _, s := range []string{"iec", "UL", " blade ", "", "mil", "ul248"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		std, err := physics.ParseFuseStd(s)
+		if err != nil {
+			return
+		}
+		if back, err := physics.ParseFuseStd(std.String()); err != nil || back != std {
+			t.Fatalf("%q → %v → %v, %v", s, std, back, err)
+		}
+	})
+}
