@@ -290,3 +290,38 @@ func FuseClearingI2t(melt, clear float64) ClearingI2t {
 	return ClearingI2t{Value: melt * ClearingFactor, Estimated: true, Factor: ClearingFactor,
 		Note: "clearing I²t estimated as 2 × melting I²t [M]; use the maker's clearing data where given"}
 }
+
+// CrowbarPoint returns the fault current i (A) through a shunt diode of
+// model m at junction temperature tj (°C) when a reversed supply vrev (V,
+// magnitude used) drives it through rExt (Ω: source, wiring and fuse cold
+// resistance), and the diode's forward drop vclamp (V) at that current,
+// which is the reverse voltage the load sees (REFERENCE §2.2 steps 1 and
+// 4; DESIGN "fault current"). It solves
+//
+//	I = (|V_rev| − V_F(I, T_j)) / R_ext
+//
+// by bisection on the full forward model (V_F rises with I, so the root is
+// unique); with the two-point line this equals CrowbarCurrent with the
+// diode's r_d. Returns 0, V_F(0⁺) when the supply is below the threshold
+// and (+Inf, NaN) when rExt ≤ 0. It does not allocate.
+func CrowbarPoint(m *ForwardModel, vrev, rExt, tj float64) (i, vclamp float64) {
+	v := math.Abs(vrev)
+	if !(rExt > 0) {
+		return math.Inf(1), math.NaN()
+	}
+	f := func(i float64) float64 { return v - m.VF(i, tj) - rExt*i }
+	lo, hi := 0.0, v/rExt
+	if f(1e-12*hi+1e-15) <= 0 {
+		return 0, m.VF(1e-15, tj)
+	}
+	for k := 0; k < 200 && hi-lo > 1e-12*hi; k++ {
+		mid := 0.5 * (lo + hi)
+		if f(mid) > 0 {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	i = 0.5 * (lo + hi)
+	return i, m.VF(i, tj)
+}

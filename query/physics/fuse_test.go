@@ -347,3 +347,29 @@ func FuzzParseFuseStd(f *testing.F) {
 		}
 	})
 }
+
+func TestCrowbarPoint(t *testing.T) {
+	// two-point line: equals CrowbarCurrent with the line's V_T0 and r_d [D §2.2]
+	m := mustForward(t, physics.ForwardData{Class: physics.SiliconPN, VF: 0.9, IF: 10, TJ: 25, Has2: true, VF2: 1.1, IF2: 50, TJ2: 25})
+	i, vc := physics.CrowbarPoint(&m, -14, 0.030, 25)
+	want := physics.CrowbarCurrent(-14, m.VT0, m.RD, 0.020, 0.010)
+	checkApprox(t, []approxCase{
+		{"crowbar I A", i, want, 1e-6},
+		{"clamp V", vc, physics.ClampVoltage(m.VT0, m.RD, want), 1e-9},
+	})
+	// single-point bound (all-ohmic above the test current): still on the model
+	s := mustForward(t, physics.ForwardData{Class: physics.SiliconPN, VF: 1.0, IF: 1, TJ: 25})
+	i, vc = physics.CrowbarPoint(&s, 14, 0.05, 25)
+	if math.Abs(14-vc-0.05*i) > 1e-6 || math.Abs(vc-s.VF(i, 25)) > 1e-12 {
+		t.Errorf("single-point crowbar: %g A, %g V", i, vc)
+	}
+	if i, _ := physics.CrowbarPoint(&m, 0.5, 0.03, 25); i != 0 {
+		t.Errorf("below threshold: %g A", i)
+	}
+	if i, _ := physics.CrowbarPoint(&m, 14, 0, 25); !math.IsInf(i, 1) {
+		t.Errorf("zero resistance: %g A", i)
+	}
+	if a := testing.AllocsPerRun(50, func() { sink, _ = physics.CrowbarPoint(&m, 14, 0.03, 25) }); a != 0 {
+		t.Errorf("%g allocations", a)
+	}
+}
