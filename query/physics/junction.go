@@ -69,7 +69,7 @@ const (
 	DefaultTjTol   = 0.01
 	DefaultMaxIter = 2000
 	DefaultTjCap   = 400.0
-	gainStep       = 0.05 // K, half-step of the central difference for dP/dT_j
+	gainStep       = 0.01 // K, step of the forward difference for dP/dT_j
 )
 
 // JunctionResult is the outcome of SolveTj.
@@ -107,7 +107,7 @@ type JunctionResult struct {
 //
 // Runaway is reported when an iterate passes Cap (no fixed point below the
 // cap), when the loop gain R_th·dP/dT_j at the fixed point is ≥ 1 (dP/dT_j
-// by central difference over ±0.05 K; REFERENCE §1.4/§1.5 stability test),
+// by forward difference over 0.01 K; REFERENCE §1.4/§1.5 stability test),
 // or when the iteration budget runs out. Starting from T_a and with P
 // rising in T_j, the iteration climbs to the lowest fixed point, which is
 // the physical one.
@@ -115,6 +115,12 @@ type JunctionResult struct {
 // SolveTj does not allocate when h is a non-escaping value (the heaters of
 // this package, or a PowerFunc closure).
 func SolveTj[H Heater](ta, rth float64, h H, opt SolveOptions) JunctionResult {
+	return solveTj(ta, rth, h, opt, true)
+}
+
+// solveTj is SolveTj; with numericGain false the loop gain is left at 0
+// for the caller to fill in analytically (and the stability verdict to it).
+func solveTj[H Heater](ta, rth float64, h H, opt SolveOptions, numericGain bool) JunctionResult {
 	tol, maxIter, tcap := opt.Tol, opt.MaxIter, opt.Cap
 	if !(tol > 0) {
 		tol = DefaultTjTol
@@ -173,7 +179,10 @@ func SolveTj[H Heater](ta, rth float64, h H, opt SolveOptions) JunctionResult {
 		if errEst >= tol {
 			continue
 		}
-		gain := rth * (h.Power(t+gainStep) - h.Power(t-gainStep)) / (2 * gainStep)
+		gain := 0.0
+		if numericGain {
+			gain = rth * (h.Power(t+gainStep) - p) / gainStep
+		}
 		if math.IsNaN(gain) {
 			bad.Iterations = k
 			return bad

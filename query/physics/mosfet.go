@@ -144,7 +144,7 @@ type FETResult struct {
 // loop gain 0.068.
 func FETTj(r25, alpha, irms, ta, rth float64, opt SolveOptions) FETResult {
 	h := NewFETConduction(r25, alpha, irms)
-	r := SolveTj(ta, rth, h, opt)
+	r := solveTj(ta, rth, h, opt, false)
 	out := FETResult{JunctionResult: r}
 	if r.Status == Stable || r.Status == RunawayGain {
 		out.LoopGain = rth * r.P * h.LnK
