@@ -81,8 +81,9 @@
 //
 // # Refusals
 //
-// Absent markers ("", "-", "--", "—", "–", "N/A", "n/a", "#N/A", "NA",
-// "n.a.", "none", "null", "?") give ErrEmpty. Everything else that is not a
+// Absent markers give ErrEmpty: "", "-", "--", "---", "—", "–", "−", "/",
+// "-/-", "?", and in any letter case "N/A", "#N/A", "NA", "n.a.", "none",
+// "null", "nil". Everything else that is not a
 // value gives an *Error with a readable reason: garbage, two numbers, an
 // unknown unit, a unit of the wrong dimension, NaN or infinity, magnitudes
 // above 1e15 or below 1e-30 (other than zero) in base units, and

@@ -29,10 +29,14 @@ func SplitHeaderUnit(header string) (rest, unit string, ok bool) {
 		default:
 			continue
 		}
-		start := strings.LastIndexByte(h[:end], open)
+		// A unit is short: look for the opening bracket nearby only, which
+		// keeps long headers linear.
+		lo := max(0, end-maxHeaderUnit)
+		start := strings.LastIndexByte(h[lo:end], open)
 		if start < 0 {
 			continue
 		}
+		start += lo
 		content := trimSpace(h[start+1 : end])
 		attached := start > 0 && !isSpaceByte(h[start-1]) && h[start-1] != '_'
 		if isHeaderUnit(content) && !(attached && content == "s") {
@@ -76,6 +80,9 @@ func SplitHeaderUnit(header string) (rest, unit string, ok bool) {
 	}
 	return h, "", false
 }
+
+// maxHeaderUnit bounds the bytes between the brackets of a header unit.
+const maxHeaderUnit = 40
 
 // isHeaderUnit reports whether s is a known unit of some dimension, not a
 // bare prefix and not one of the words that qualify a rating.

@@ -17,6 +17,7 @@ type Error struct {
 	Reason string // e.g. `unit "A" is a current; this field wants a voltage`
 }
 
+// Error returns the reason followed by the input, quoted and shortened.
 func (e *Error) Error() string { return e.Reason + " (got " + quote(e.Input) + ")" }
 
 // quote quotes s for a message, shortened to 60 runes.
@@ -35,8 +36,9 @@ func quote(s string) string {
 	return strconv.Quote(s)
 }
 
-// ErrEmpty is returned for a cell that means "absent": "", "-", "—", "N/A".
-// Callers test it with errors.Is.
+// ErrEmpty is returned for a cell that means "absent": "", "-", "—", "N/A"
+// (the full list is in the package documentation). Callers test it with
+// errors.Is.
 var ErrEmpty = errors.New("no value (empty cell or absent marker)")
 
 // Limits on magnitudes in base units: beyond them a value is a typo or a
@@ -207,6 +209,9 @@ func parse(t string, d Dim, pick Pick, headerUnit string) (float64, string) {
 	if !isRange {
 		switch {
 		case pm && pick == Lower:
+			if d == Temperature && -math.Abs(x) < absZeroC-1e-9 {
+				return 0, "the lower end of a \"±\" temperature is below absolute zero (-273.15 °C)"
+			}
 			return -math.Abs(x), ""
 		case pm, pick == Magnitude:
 			return math.Abs(x), ""

@@ -98,9 +98,9 @@ func init() {
 		return u
 	}
 	base := map[string]unitDef{
-		"V": plain(vDim, true),
-		"A": plain(aDim, true),
-		"W": plain(wDim, true),
+		"V":      plain(vDim, true),
+		"A":      plain(aDim, true),
+		"W":      plain(wDim, true),
 		"\u2126": plain(rDim, true), // OHM SIGN
 		"\u03a9": plain(rDim, true), // GREEK CAPITAL LETTER OMEGA
 		"ohm":    plain(rDim, true),

@@ -68,7 +68,7 @@ func readTable(t *testing.T, name string, nfields int) []tableRow {
 	return rows
 }
 
-func close(a, b, rel float64) bool {
+func near(a, b, rel float64) bool {
 	if a == b {
 		return true
 	}
@@ -121,7 +121,7 @@ func TestParseTable(t *testing.T) {
 				t.Errorf("parse.txt:%d: ParseWith(%q, %v, %v, %q): %v; want %g", r.line, in, d, p, header, err, w)
 				continue
 			}
-			if !close(got, w, 1e-12) {
+			if !near(got, w, 1e-12) {
 				t.Errorf("parse.txt:%d: ParseWith(%q, %v, %v, %q) = %.17g, want %.17g", r.line, in, d, p, header, got, w)
 			}
 		}
@@ -160,7 +160,7 @@ func TestGNUUnits(t *testing.T) {
 		if err != nil {
 			t.Fatalf("gnu_units.txt:%d: bad value %q", r.line, want)
 		}
-		if g := toTarget(got, target); !close(g, w, 1e-9) {
+		if g := toTarget(got, target); !near(g, w, 1e-9) {
 			t.Errorf("gnu_units.txt:%d: Parse(%q) = %.15g %s, table says %.15g", r.line, in, g, target, w)
 		}
 		live = append(live, r)
@@ -189,7 +189,7 @@ func TestGNUUnits(t *testing.T) {
 				return
 			}
 			got, _ := Parse(in, dimNames[dn], pickNames[pn])
-			if g := toTarget(got, target); !close(g, ref, 1e-9) {
+			if g := toTarget(got, target); !near(g, ref, 1e-9) {
 				t.Errorf("gnu_units.txt:%d: Parse(%q) = %.15g %s, GNU units %q says %.15g", r.line, in, g, target, expr, ref)
 			}
 		}(r)
@@ -284,7 +284,7 @@ func checkRoundTrip(t *testing.T, v float64, d Dim, sig int) {
 	tol := 0.5 * math.Pow(10, float64(1-sig)) * (1 + 1e-9)
 	// A fraction is multiplied by 100 (or 1e6) before rounding, which adds
 	// one floating-point rounding.
-	if !close(got, v, tol+1e-15) {
+	if !near(got, v, tol+1e-15) {
 		t.Errorf("Parse(FormatSig(%.17g, %v, %d) = %q) = %.17g", v, d, sig, s, got)
 	}
 }
