@@ -75,9 +75,11 @@
 // A range is two values joined by "to", "...", "..", "…", "~", "-", "–"
 // (en dash), "—" (em dash) or "−": "-55 to 150 °C", "-55...150",
 // "−55 – +150 °C", "-40~125", "1-2.5 V". The unit may be written on both
-// ends ("500 mV to 2 V") or on one end, and then applies to both. Pick says
-// which number the field takes: the largest magnitude, the upper or the lower
-// end, or a single signed value.
+// ends ("500 mV to 2 V") or after the last one only, and then applies to
+// both; a unit on the first end only ("500 mV to 2") is refused as
+// ambiguous. Pick says which number the field takes: the largest magnitude,
+// the upper or the lower end, or a single signed value. A "±" value is the
+// range from −x to +x.
 //
 // # Refusals
 //
