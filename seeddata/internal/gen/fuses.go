@@ -23,7 +23,7 @@ import (
 // (invented for demo, typical datasheet levels).
 type fuseFamily struct {
 	m        maker
-	typ      string // IEC 60127 speed letter (blade fuses: M, slow-blow T)
+	typ      string // IEC 60127 speed letter; blade fuses have none, they get M (slow-blow blades T)
 	std      string // iec, ul, blade
 	pkg      string
 	prefix   string // part number prefix; the rating code follows
