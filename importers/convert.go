@@ -20,6 +20,7 @@ type converter struct {
 	fuseStd   string       // mapping fuse_std (a default)
 	consts    []constant   // mapping constants, defaults for every row
 	section   guess        // kind told by a section title row above
+	rowStd    string       // fuse standard of the row being converted
 	na        map[int]map[catalog.Kind]bool
 }
 
@@ -111,6 +112,32 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 	}
 	p := &catalog.Part{Kind: kind, Type: typ, Mfr: cleanSpaces(mfr), MPN: cleanSpaces(mpn), Num: map[string]float64{}}
 	fedBy := map[string]int{} // field -> column that gave its value
+	for _, t := range [...]string{"desc", "package", "datasheet"} {
+		if v, _ := r.first(t); v != "" {
+			setText(p, t, cleanSpaces(v))
+		} else if v := cv.constText(t); v != "" {
+			setText(p, t, v)
+		}
+	}
+	cv.rowStd = ""
+	if kind == catalog.Fuse {
+		if v, _ := r.first("fuse_std"); v != "" {
+			cv.rowStd = fuseStdCell(v)
+		}
+		if cv.rowStd == "" {
+			cv.rowStd = cv.fuseStd
+		}
+		if cv.rowStd == "" {
+			words := []string{p.Desc, p.Package}
+			for _, t := range [...]string{"type", fCategory, fSpeed} {
+				if v, _ := r.first(t); v != "" {
+					words = append(words, v)
+				}
+			}
+			cv.rowStd = fuseStd(strings.Join(words, " | "))
+		}
+		p.FuseStd = cv.rowStd
+	}
 
 	// numbers, left to right so the first bad cell is the one reported
 	for i, c := range lo.cols {
@@ -126,14 +153,7 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 		}
 	}
 
-	// text, enums, booleans
-	for _, t := range [...]string{"desc", "package", "datasheet"} {
-		if v, _ := r.first(t); v != "" {
-			setText(p, t, cleanSpaces(v))
-		} else if v := cv.constText(t); v != "" {
-			setText(p, t, v)
-		}
-	}
+	// enums, booleans
 	if v, i := r.first("lifecycle"); v != "" {
 		lc, err := parseLifecycle(v)
 		if err != nil {
@@ -162,15 +182,6 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 		}
 	}
 	if kind == catalog.Fuse {
-		if v, _ := r.first("fuse_std"); v != "" {
-			p.FuseStd = fuseStdCell(v)
-		}
-		if p.FuseStd == "" {
-			p.FuseStd = cv.fuseStd
-		}
-		if p.FuseStd == "" {
-			p.FuseStd = fuseStd(p.Desc + " " + p.Package)
-		}
 		if v, i := r.first("rerate"); v != "" {
 			s, err := parseRerate(v)
 			if err != nil {
@@ -378,21 +389,13 @@ func (cv *converter) fuseVoltage(p *catalog.Part, fedBy map[string]int, i int, c
 		switch {
 		case field != "":
 			set(field, plain)
-		case cv.fuseStdHint(p) == "blade":
+		case cv.rowStd == "blade":
 			set("un_dc", plain)
 		default:
 			set("un_ac", plain)
 		}
 	}
 	return nil
-}
-
-// fuseStdHint is the fuse standard known before the text fields are read.
-func (cv *converter) fuseStdHint(p *catalog.Part) string {
-	if cv.fuseStd != "" {
-		return cv.fuseStd
-	}
-	return fuseStd(p.Desc + " " + p.Package + " " + p.MPN)
 }
 
 // resolveGeneric maps a generic rating column to the field of a kind.
@@ -490,7 +493,7 @@ func (cv *converter) notApplicableNotes() []string {
 // kindOf gathers what a row says about its kind and settles it.
 func (cv *converter) kindOf(r row) (catalog.Kind, string, *rowReject) {
 	lo := r.lo
-	f := kindFacts{fixed: cv.fixed, fixedType: cv.fixedType, section: cv.section, present: map[catalog.Kind]int{}}
+	f := kindFacts{fixed: cv.fixed, fixedType: cv.fixedType, section: cv.section, present: map[catalog.Kind][]string{}}
 	f.kindCell, _ = r.first("kind")
 	add := func(target string, exact, typeCol bool) {
 		for _, i := range lo.byField[target] {
@@ -505,9 +508,9 @@ func (cv *converter) kindOf(r row) (catalog.Kind, string, *rowReject) {
 	add(fSpeed, true, false)
 	add("desc", false, false)
 	f.desc, _ = r.first("desc")
-	for field, k := range kindFields {
-		if v, _ := r.first(field); v != "" {
-			f.present[k]++
+	for i, c := range lo.cols {
+		if k, ok := kindFields[c.Field]; ok && !isAbsent(r.at(i)) {
+			f.present[k] = append(f.present[k], lo.header(i, c.Field))
 		}
 	}
 	if v, _ := r.first("vz"); v != "" {
@@ -523,7 +526,7 @@ func (cv *converter) kindOf(r row) (catalog.Kind, string, *rowReject) {
 			f.negative = true
 		}
 	}
-	if f.fixed == catalog.MOSFET || f.present[catalog.MOSFET] > 0 {
+	if f.fixed == catalog.MOSFET || len(f.present[catalog.MOSFET]) > 0 {
 		if v, _ := r.first(gVoltage); strings.HasPrefix(v, "-") || strings.HasPrefix(v, "−") {
 			f.negative = true
 		}

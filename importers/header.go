@@ -44,15 +44,47 @@ type Condition struct {
 // not recognised. It never fails; an unrecognisable header is simply
 // unknown.
 func RecognizeHeader(header string) Column {
+	col, cur := recognize(header, true)
+	if cur != "" && col.Field != fPrice && col.Field != fBreaks && col.Field != fQty {
+		// a currency code that is part of a name ("Ron" is also the
+		// Romanian leu): read the header again without cutting it
+		col, _ = recognize(header, false)
+	}
+	if col.Field == "" && strings.Contains(header, "/") {
+		// two languages or two names: "Hersteller / Manufacturer"
+		var found Column
+		n := 0
+		for _, part := range strings.Split(header, "/") {
+			if c := RecognizeHeader(part); c.Field != "" {
+				if n > 0 && c.Field != found.Field {
+					return Column{Header: header}
+				}
+				found, n = c, n+1
+			}
+		}
+		if n > 0 {
+			found.Header = header
+			return found
+		}
+	}
+	return col
+}
+
+// recognize is RecognizeHeader, cutting a currency out of the header
+// first when cutCur is set; it also returns the currency it cut.
+func recognize(header string, cutCur bool) (Column, string) {
 	col := Column{Header: header}
 	h := cleanSpaces(header)
 	if h == "" {
-		return col
+		return col, ""
 	}
-	h, col.Currency = cutCurrency(h)
+	if cutCur {
+		h, col.Currency = cutCurrency(h)
+	}
+	cur := col.Currency
 	if pc, ok := priceHeader(h); ok {
 		pc.Header, pc.Currency = header, col.Currency
-		return pc
+		return pc, cur
 	}
 
 	// Bracket groups: units, conditions, or words that belong to the name.
@@ -117,14 +149,14 @@ func RecognizeHeader(header string) Column {
 		}
 	}
 	if !ok {
-		return Column{Header: header}
+		return Column{Header: header}, cur
 	}
 	col.Field, col.Qual = target, qual
-	if col.Field != fPrice && col.Field != fBreaks && col.Field != fQty {
-		col.Currency = ""
+	if targetDim(col.Field) == units.None {
+		col.Unit = "" // "Stock (pcs)": no unit to apply
 	}
 	resolveConds(&col)
-	return col
+	return col, cur
 }
 
 // resolveConds names the field each condition fills for col.Field.

@@ -100,7 +100,7 @@ var headerWords = map[string][]string{
 	"vgs_max":    {"VGS", "V_GS", "VGS max", "Vgsmax", "VGSS", "V_GSS", "gate-source voltage", "gate source voltage", "gate to source voltage", "max gate-source voltage", "gate voltage", "gate-source voltage max", "VGS(max)"},
 	"vgs_th":     {"VGS(th)", "V_GS(th)", "Vgs(th)", "VGSth", "V GS(th)", "Vth", "V_th", "gate threshold", "gate threshold voltage", "threshold voltage", "VGS(to)", "Vgs th"},
 	"rdson":      {"RDS(on)", "R_DS(on)", "RDSon", "Rdson", "RDS on", "R DS(on)", "RDS", "R_DS", "Ron", "R_on", "on-resistance", "on resistance", "drain-source on-resistance", "static drain-source on-resistance", "drain source on resistance"},
-	"rdson_vgs":  {"RDS(on) VGS", "VGS for RDS(on)", "VGS(RDSon)", "gate drive", "gate drive voltage", "drive voltage", "RDS(on) test voltage", "VGS test", "RDS(on) gate voltage", "RDS(on) at VGS"},
+	"rdson_vgs":  {"RDS(on) VGS", "VGS for RDS(on)", "VGS(RDSon)", "gate drive", "gate drive voltage", "drive voltage", "RDS(on) test voltage", "VGS test", "RDS(on) gate voltage"},
 	"rdson2":     {"RDS(on) 2", "RDSon2"},
 	"rdson2_vgs": {"RDS(on) 2 VGS"},
 	"id":         {"ID", "I_D", "drain current", "continuous drain current", "ID max", "IDmax", "max drain current", "ID cont", "drain current continuous", "ID(cont)"},

@@ -1,6 +1,7 @@
 package importers
 
 import (
+	"fmt"
 	"regexp"
 	"strings"
 	"unicode"
@@ -288,12 +289,12 @@ var tvsFields = []string{"vrwm", "vbr", "vc", "ipp", "ppk"}
 
 // kindFacts is what a row says about its kind and type.
 type kindFacts struct {
-	fixed     catalog.Kind // --kind or the mapping file
-	fixedType string       // the mapping file's type, a default
-	kindCell  string       // the kind column
-	texts     []kindText   // type, category, channel, speed, description cells, strongest first
-	section   guess        // a section title row above ("Zener diodes")
-	present   map[catalog.Kind]int
+	fixed     catalog.Kind              // --kind or the mapping file
+	fixedType string                    // the mapping file's type, a default
+	kindCell  string                    // the kind column
+	texts     []kindText                // type, category, channel, speed, description cells, strongest first
+	section   guess                     // a section title row above ("Zener diodes")
+	present   map[catalog.Kind][]string // headers of filled kind-specific columns
 	hasVZ     bool
 	hasTVS    bool
 	negative  bool // a MOSFET voltage or current written negative
@@ -327,7 +328,9 @@ const noKindReason = "cannot tell whether this row is a diode, fuse or MOSFET; a
 // technology.
 func decideKind(f kindFacts) (catalog.Kind, string, *kindError) {
 	kind := f.fixed
+	said, saidRaw := "", "" // the column and cell that named the kind
 	if kind == "" && strings.TrimSpace(f.kindCell) != "" {
+		said, saidRaw = "kind", f.kindCell
 		k, ok := kindNames[strings.TrimSpace(normText(f.kindCell))]
 		if !ok {
 			g := wordsGuess(f.kindCell, "")
@@ -342,7 +345,7 @@ func decideKind(f kindFacts) (catalog.Kind, string, *kindError) {
 	if kind == "" {
 		for _, t := range f.texts {
 			if g := wordsGuess(t.text, ""); g.kind != "" && (t.exact || !isExactOnly(t.text)) {
-				kind = g.kind
+				kind, said, saidRaw = g.kind, t.column, t.text
 				break
 			}
 		}
@@ -350,10 +353,18 @@ func decideKind(f kindFacts) (catalog.Kind, string, *kindError) {
 	if kind == "" {
 		kind = f.section.kind
 	}
+	if said != "" && len(f.present[kind]) == 0 {
+		for _, k := range catalog.Kinds {
+			if k != kind && len(f.present[k]) > 0 {
+				return "", "", &kindError{column: said, raw: saidRaw,
+					reason: fmt.Sprintf("the row says %s here, but fills %s columns (%s)", kind, k, strings.Join(f.present[k], ", "))}
+			}
+		}
+	}
 	if kind == "" {
 		best, n, tie := catalog.Kind(""), 0, false
 		for _, k := range catalog.Kinds {
-			switch c := f.present[k]; {
+			switch c := len(f.present[k]); {
 			case c > n:
 				best, n, tie = k, c, false
 			case c == n && c > 0:
