@@ -243,12 +243,13 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 				col = field + " (mapping constant)"
 			}
 		} else if field == "vz" || field == "type" {
-			col = lo.headerOf("type")
-			if col == "type" {
-				col = lo.headerOf(fCategory)
-			}
-			if col == fCategory {
-				col = "type"
+			// the type came from a type or category column
+			col = "type"
+			for _, t := range [...]string{"type", fCategory, "desc"} {
+				if v, i := r.first(t); v != "" {
+					col, raw = lo.header(i, t), v
+					break
+				}
 			}
 		}
 		return nil, &rowReject{column: col, raw: raw, reason: reason}

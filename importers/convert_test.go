@@ -254,7 +254,7 @@ func TestConvertRejects(t *testing.T) {
 		{"VF above VRRM", diode, []string{"Aldor", "R1", "rectifier", "1", "1", "1.2"}, "VF (V)", "1.2", "above V_RRM"},
 		{"tjmax out of range", diode, []string{"Aldor", "R1", "rectifier", "100", "1", "", "400"}, "Tj (°C)", "400", "-70..300"},
 		{"tolerance out of range", diode, []string{"Aldor", "Z1", "zener", "", "", "", "", "60 %", "5.1"}, "Tolerance", "60 %", "0..0.5"},
-		{"zener without vz", diode, []string{"Aldor", "Z2", "Zener", "", "", "", "150"}, "Type", "", "needs V_Z"},
+		{"zener without vz", diode, []string{"Aldor", "Z2", "Zener", "", "", "", "150"}, "Type", "Zener", "needs V_Z"},
 		{"rdson_vgs above vgs_max", fet, []string{"Kestrel", "K1", "N", "30", "8", "1", "10", "10"}, "rdson_vgs", "10", "above V_GS(max)"},
 		{"vgs_th above vgs_max", fet, []string{"Kestrel", "K1", "N", "30", "8", "9"}, "VGS(th) (V)", "9", "above V_GS(max)"},
 		{"negative rdson", fet, []string{"Kestrel", "K1", "N", "30", "20", "2", "-5"}, "RDS(on) (mΩ)", "-5", "negative"},

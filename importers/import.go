@@ -162,7 +162,7 @@ func importAt(ctx context.Context, st *catalog.Store, name string, r io.ReaderAt
 		label = filepath.Base(name)
 	}
 	cr := &countingReaderAt{r: r}
-	book, err := OpenBook(name, cr, size)
+	book, err := openBook(name, cr, size)
 	if err != nil {
 		return nil, nameErr(name, err)
 	}
@@ -771,3 +771,6 @@ func safeCell(s string) string {
 	}
 	return s
 }
+
+// openBook opens spreadsheets; tests replace it to feed failing readers.
+var openBook = OpenBook
