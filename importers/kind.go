@@ -205,6 +205,13 @@ func wordsGuess(text string, within catalog.Kind) guess {
 		return guess{}
 	}
 	g := guess{kind: kind}
+	if kind == catalog.MOSFET {
+		for _, both := range [...]string{"n and p", "p and n", "n p", "p n", "complementary", "dual n p"} {
+			if has(t, both) >= 0 {
+				return g
+			}
+		}
+	}
 	for _, p := range typePhrases {
 		if p.kind != kind || has(t, p.text) < 0 {
 			continue
