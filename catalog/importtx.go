@@ -29,13 +29,36 @@ type ImportTx struct {
 	added, updated, unchanged int
 	dirty                     bool    // some part or offer changed
 	textIDs                   []int64 // parts whose indexed text is new or changed
+	linkIDs                   []int64 // parts to link to the source (at Commit)
+	newOffers                 []any   // offers of new parts not yet inserted, offerCols values each
+	partsAtBegin              int64   // max(id) when the import began
+	dropped                   bool    // the parametric indexes were dropped for a bulk load
+	lastFound                 bool    // the previous Put found its part stored
 
-	selPart, insPart, updPart, linkSrc         *sql.Stmt
-	selOffers, insOffer, updOffer, setOfferSrc *sql.Stmt
+	selPart, updPart                   *sql.Stmt
+	selOffers, insOffer, updOffer      *sql.Stmt
+	setOfferSrc, flushOffers, linkMany *sql.Stmt
+	insPart                            map[string]*sql.Stmt // by which fields are present
 
-	rs   *rowScanner
-	args []any
+	args   []any
+	mask   []byte
+	row    row               // reused by Put
+	offers []offerRow        // reused by Put
+	supKey map[string]string // supplier name -> NormKey, memo
 }
+
+// Bulk-load tuning. Offers of new parts are inserted newOfferBatch at a
+// time through one json_each statement. Once an import has added
+// bulkThreshold parts and at least as many as the catalog held, the
+// parametric indexes are dropped inside the transaction and rebuilt at
+// Commit: building an index after the load is cheaper than updating it
+// row by row (readers keep their snapshot, a rollback restores them).
+const (
+	offerCols     = 9
+	newOfferBatch = 100
+	linkBatch     = 50000
+	bulkThreshold = 20000
+)
 
 // BeginImport starts the transaction of one import from src (label, file,
 // hash). Only one import runs at a time; a second waits (busy timeout) or
@@ -58,7 +81,7 @@ func (s *Store) BeginImport(ctx context.Context, src Source) (*ImportTx, error) 
 		}
 		return nil, fmt.Errorf("catalog %s: cannot start the import: %w", s.Path, err)
 	}
-	t := &ImportTx{s: s, ctx: ctx, tx: tx, src: src, now: src.Time.Unix(), rs: newRowScanner(new(int64))}
+	t := &ImportTx{s: s, ctx: ctx, tx: tx, src: src, now: src.Time.Unix()}
 	if err := t.prepare(); err != nil {
 		tx.Rollback()
 		if isBusy(err) {
@@ -81,15 +104,15 @@ func (t *ImportTx) prepare() error {
 	if err != nil {
 		return err
 	}
-	var cols, marks, sets strings.Builder
+	if err = t.tx.QueryRowContext(ctx, `SELECT coalesce(max(id), 0) FROM parts`).Scan(&t.partsAtBegin); err != nil {
+		return err
+	}
+	var sets strings.Builder
 	for i, f := range Fields {
-		c := `"` + colName(f.Name) + `"`
-		cols.WriteString(", " + c)
-		marks.WriteString(", ?")
 		if i > 0 {
 			sets.WriteString(", ")
 		}
-		sets.WriteString(c + " = ?")
+		sets.WriteString(`"` + colName(f.Name) + `" = ?`)
 	}
 	prep := func(dst **sql.Stmt, q string) {
 		if err != nil {
@@ -97,16 +120,50 @@ func (t *ImportTx) prepare() error {
 		}
 		*dst, err = t.tx.PrepareContext(ctx, q)
 	}
-	prep(&t.selPart, `SELECT parts.id, `+fieldColumns+` FROM parts WHERE mpn_key = ? AND mfr_key = ?`)
-	prep(&t.insPart, `INSERT INTO parts(mfr_key, mpn_key`+cols.String()+`, created, updated) VALUES (?, ?`+marks.String()+`, ?, ?)`)
+	// One JSON column instead of one column per field: database/sql's
+	// per-column cost dominates a wide row, and SQLite writes REALs in
+	// JSON with enough digits to read back the same float64.
+	prep(&t.selPart, `SELECT parts.id, json_array(`+fieldColumns+`) FROM parts WHERE mpn_key = ? AND mfr_key = ?`)
 	prep(&t.updPart, `UPDATE parts SET `+sets.String()+`, updated = ? WHERE id = ?`)
-	prep(&t.linkSrc, `INSERT OR IGNORE INTO part_sources(part_id, source_id) VALUES (?, ?)`)
-	prep(&t.selOffers, `SELECT id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id FROM offers WHERE part_id = ?`)
+	prep(&t.linkMany, `INSERT OR IGNORE INTO part_sources(part_id, source_id) SELECT value, ? FROM json_each(?)`)
+	prep(&t.flushOffers, offerInsertSQL(newOfferBatch))
+	prep(&t.selOffers, `SELECT json_group_array(json_array(id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id)) FROM offers WHERE part_id = ?`)
 	prep(&t.insOffer, `INSERT INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`)
 	prep(&t.updOffer, `UPDATE offers SET stock = ?, moq = ?, currency = ?, breaks = ?, source_id = ? WHERE id = ?`)
 	prep(&t.setOfferSrc, `UPDATE offers SET source_id = ? WHERE id = ?`)
 	t.args = make([]any, 0, len(Fields)+4)
+	t.mask = make([]byte, len(Fields))
+	t.insPart = map[string]*sql.Stmt{}
 	return err
+}
+
+// insertStmt returns the INSERT for the fields present in r. Writing only
+// the present columns halves the cost of an insert (most fields of a part
+// belong to other kinds); a file uses a handful of column sets.
+func (t *ImportTx) insertStmt(r row) (*sql.Stmt, error) {
+	for i, v := range r {
+		t.mask[i] = '0'
+		if v != nil {
+			t.mask[i] = '1'
+		}
+	}
+	if st := t.insPart[string(t.mask)]; st != nil {
+		return st, nil
+	}
+	var cols, marks strings.Builder
+	for i, f := range Fields {
+		if r[i] != nil {
+			cols.WriteString(`, "` + colName(f.Name) + `"`)
+			marks.WriteString(", ?")
+		}
+	}
+	st, err := t.tx.PrepareContext(t.ctx, `INSERT INTO parts(mfr_key, mpn_key`+cols.String()+`, created, updated) VALUES (?, ?`+marks.String()+`, ?, ?)
+		ON CONFLICT (mpn_key, mfr_key) DO NOTHING`)
+	if err != nil {
+		return nil, err
+	}
+	t.insPart[string(t.mask)] = st
+	return st, nil
 }
 
 var errFinished = errors.New("the import is already committed or rolled back")
@@ -136,25 +193,41 @@ func (t *ImportTx) Put(p *Part) (Outcome, []Change, error) {
 	if t.done {
 		return 0, nil, errFinished
 	}
-	nr, err := partRow(p)
+	nr, err := partRowInto(p, t.row)
 	if err != nil {
 		return 0, nil, err
 	}
-	offers, err := normOffers(p)
+	t.row = nr
+	offers, err := t.normOffers(p)
 	if err != nil {
 		return 0, nil, err
 	}
 	mk, pk := NormKey(p.Mfr), NormKey(p.MPN)
+	// A new part costs one INSERT; an existing one a lookup. Which to try
+	// first follows the previous Put: a new file is mostly new parts, a
+	// re-import mostly known ones, and the wrong guess costs one statement.
 	var id int64
-	err = t.selPart.QueryRowContext(t.ctx, pk, mk).Scan(t.rs.dest...)
-	if errors.Is(err, sql.ErrNoRows) {
-		return t.insert(mk, pk, nr, offers)
+	var old row
+	found := false
+	if t.lastFound {
+		if id, old, found, err = t.lookup(pk, mk); err != nil {
+			return 0, nil, err
+		}
 	}
-	if err != nil {
-		return 0, nil, t.fail(err)
+	if !found {
+		o, err := t.insert(mk, pk, nr, offers)
+		if err != nil || o == Added {
+			t.lastFound = false
+			return o, nil, err
+		}
+		if id, old, found, err = t.lookup(pk, mk); err != nil {
+			return 0, nil, err
+		}
+		if !found {
+			return 0, nil, t.fail(fmt.Errorf("part %s %s neither inserted nor found", p.Mfr, p.MPN))
+		}
 	}
-	id = *t.rs.dest[0].(*int64)
-	old := t.rs.row()
+	t.lastFound = true
 	merged, changes := mergeRows(old, nr)
 	mfr, mpn := old[fieldIndex["mfr"]].(string), old[fieldIndex["mpn"]].(string)
 	for i := range changes {
@@ -173,9 +246,7 @@ func (t *ImportTx) Put(p *Part) (Outcome, []Change, error) {
 			}
 		}
 	}
-	if _, err := t.linkSrc.ExecContext(t.ctx, id, t.srcID); err != nil {
-		return 0, nil, t.fail(err)
-	}
+	t.linkIDs = append(t.linkIDs, id)
 	if len(offers) > 0 {
 		oc, err := t.mergeOffers(id, offers)
 		if err != nil {
@@ -199,30 +270,125 @@ func (t *ImportTx) fail(err error) error {
 	return fmt.Errorf("catalog %s: %w", t.s.Path, err)
 }
 
-func (t *ImportTx) insert(mk, pk string, r row, offers []offerRow) (Outcome, []Change, error) {
-	t.args = append(t.args[:0], mk, pk)
-	t.args = append(t.args, r...)
-	t.args = append(t.args, t.now, t.now)
-	res, err := t.insPart.ExecContext(t.ctx, t.args...)
+// lookup reads the stored row of the part with keys pk, mk.
+func (t *ImportTx) lookup(pk, mk string) (id int64, old row, found bool, err error) {
+	if len(t.newOffers) > 0 {
+		// the part may be new in this import with its offers still buffered
+		if err := t.flushNewOffers(); err != nil {
+			return 0, nil, false, t.fail(err)
+		}
+	}
+	var js string
+	err = t.selPart.QueryRowContext(t.ctx, pk, mk).Scan(&id, &js)
+	if errors.Is(err, sql.ErrNoRows) {
+		return 0, nil, false, nil
+	}
 	if err != nil {
-		return 0, nil, t.fail(err)
+		return 0, nil, false, t.fail(err)
+	}
+	if old, err = jsonRow(js); err != nil {
+		return 0, nil, false, t.fail(fmt.Errorf("part %d: %w", id, err))
+	}
+	return id, old, true, nil
+}
+
+// insert adds the part when its identity is new and returns Added; it
+// returns Unchanged (nothing written) when the part exists.
+func (t *ImportTx) insert(mk, pk string, r row, offers []offerRow) (Outcome, error) {
+	st, err := t.insertStmt(r)
+	if err != nil {
+		return 0, t.fail(err)
+	}
+	t.args = append(t.args[:0], mk, pk)
+	for _, v := range r {
+		if v != nil {
+			t.args = append(t.args, v)
+		}
+	}
+	t.args = append(t.args, t.now, t.now)
+	res, err := st.ExecContext(t.ctx, t.args...)
+	if err != nil {
+		return 0, t.fail(err)
+	}
+	if n, err := res.RowsAffected(); err != nil || n == 0 {
+		return Unchanged, err
 	}
 	id, err := res.LastInsertId()
 	if err != nil {
-		return 0, nil, t.fail(err)
+		return 0, t.fail(err)
 	}
-	if _, err := t.linkSrc.ExecContext(t.ctx, id, t.srcID); err != nil {
-		return 0, nil, t.fail(err)
-	}
+	t.linkIDs = append(t.linkIDs, id)
 	for i := range offers {
-		if err := t.insertOffer(id, &offers[i]); err != nil {
-			return 0, nil, t.fail(err)
+		o := &offers[i]
+		if dupOffer(offers[:i], o) {
+			continue // the first of two offers with one supplier and SKU wins
+		}
+		br := o.breaks
+		if br == "" {
+			br = "[]"
+		}
+		var stock any
+		if o.stock != nil {
+			stock = *o.stock
+		}
+		t.newOffers = append(t.newOffers, id, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br, t.srcID)
+	}
+	if len(t.newOffers) >= newOfferBatch*offerCols {
+		if err := t.flushNewOffers(); err != nil {
+			return 0, t.fail(err)
 		}
 	}
 	t.added++
 	t.dirty = true
 	t.textIDs = append(t.textIDs, id)
-	return Added, nil, nil
+	if !t.dropped && t.added >= bulkThreshold && int64(t.added) >= t.partsAtBegin {
+		for _, ix := range paramIndexes {
+			if _, err := t.tx.ExecContext(t.ctx, `DROP INDEX IF EXISTS `+paramIndexName(ix.kind, ix.field)); err != nil {
+				return 0, t.fail(err)
+			}
+		}
+		t.dropped = true
+	}
+	return Added, nil
+}
+
+func dupOffer(before []offerRow, o *offerRow) bool {
+	for i := range before {
+		if before[i].supKey == o.supKey && before[i].sku == o.sku {
+			return true
+		}
+	}
+	return false
+}
+
+// offerInsertSQL is a multi-row INSERT of n offers (9 values each).
+func offerInsertSQL(n int) string {
+	var b strings.Builder
+	b.WriteString(`INSERT INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id) VALUES `)
+	for i := range n {
+		if i > 0 {
+			b.WriteString(", ")
+		}
+		b.WriteString("(?, ?, ?, ?, ?, ?, ?, ?, ?)")
+	}
+	return b.String()
+}
+
+// flushNewOffers inserts the buffered offers of new parts (t.newOffers
+// holds their values flat, offerCols per offer).
+func (t *ImportTx) flushNewOffers() error {
+	n := len(t.newOffers) / offerCols
+	if n == 0 {
+		return nil
+	}
+	var err error
+	if n == newOfferBatch {
+		_, err = t.flushOffers.ExecContext(t.ctx, t.newOffers...)
+	} else {
+		_, err = t.tx.ExecContext(t.ctx, offerInsertSQL(n), t.newOffers...)
+	}
+	t.newOffers = t.newOffers[:0]
+	return err
 }
 
 // mergeRows merges the new row nr over the stored row old: present values
@@ -283,13 +449,24 @@ func (o *offerRow) label() string {
 }
 
 // normOffers validates the offers of p.
-func normOffers(p *Part) ([]offerRow, error) {
-	var out []offerRow
+func (t *ImportTx) normOffers(p *Part) ([]offerRow, error) {
+	if t.supKey == nil {
+		t.supKey = map[string]string{}
+	}
+	out := t.offers[:0]
+	defer func() { t.offers = out[:0] }()
 	for i, o := range p.Offers {
 		who := fmt.Sprintf("part %s %s: offer %d", strings.TrimSpace(p.Mfr), strings.TrimSpace(p.MPN), i+1)
 		r := offerRow{supplier: strings.TrimSpace(o.Supplier), sku: strings.TrimSpace(o.SKU),
 			moq: o.MOQ, currency: strings.ToUpper(strings.TrimSpace(o.Currency))}
-		r.supKey = NormKey(r.supplier)
+		key, ok := t.supKey[r.supplier]
+		if !ok {
+			key = NormKey(r.supplier)
+			if len(t.supKey) < 1000 {
+				t.supKey[r.supplier] = key
+			}
+		}
+		r.supKey = key
 		if r.supKey == "" {
 			return nil, fmt.Errorf("%s has no supplier", who)
 		}
@@ -401,23 +578,24 @@ type storedOffer struct {
 
 // mergeOffers merges offers into the stored offers of part id.
 func (t *ImportTx) mergeOffers(id int64, offers []offerRow) ([]Change, error) {
-	rows, err := t.selOffers.QueryContext(t.ctx, id)
-	if err != nil {
+	var js string
+	if err := t.selOffers.QueryRowContext(t.ctx, id).Scan(&js); err != nil {
 		return nil, err
 	}
-	stored := map[[2]string]*storedOffer{}
-	for rows.Next() {
-		var so storedOffer
-		var sk, sku string
-		if err := rows.Scan(&so.id, &so.supplier, &sk, &sku, &so.stock, &so.moq, &so.currency, &so.breaks, &so.source); err != nil {
-			rows.Close()
-			return nil, err
+	v, err := parseJSON(js)
+	raw, ok := v.([]any)
+	if err != nil || !ok {
+		return nil, fmt.Errorf("offers of part %d: %v", id, err)
+	}
+	stored := make(map[[2]string]*storedOffer, len(raw))
+	for _, x := range raw {
+		r, ok := x.([]any)
+		if !ok || len(r) != 9 {
+			return nil, fmt.Errorf("offers of part %d: bad row", id)
 		}
-		stored[[2]string{sk, sku}] = &so
-	}
-	rows.Close()
-	if err := rows.Err(); err != nil {
-		return nil, err
+		so := &storedOffer{id: jsonInt(r[0]).Int64, supplier: jsonStr(r[1]), stock: jsonInt(r[4]),
+			moq: jsonInt(r[5]).Int64, currency: jsonStr(r[6]), breaks: jsonStr(r[7]), source: jsonInt(r[8])}
+		stored[[2]string{jsonStr(r[2]), jsonStr(r[3])}] = so
 	}
 	var changes []Change
 	for i := range offers {
@@ -477,6 +655,16 @@ func (t *ImportTx) mergeOffers(id int64, offers []offerRow) ([]Change, error) {
 	return changes, nil
 }
 
+func jsonStr(v any) string {
+	s, _ := v.(string)
+	return s
+}
+
+func jsonInt(v any) sql.NullInt64 {
+	f, ok := v.(float64)
+	return sql.NullInt64{Int64: int64(f), Valid: ok}
+}
+
 func nullIntText(v sql.NullInt64) string {
 	if !v.Valid {
 		return ""
@@ -514,6 +702,10 @@ func (t *ImportTx) Commit(counts Source) error {
 	}
 	t.done = true
 	ctx := t.ctx
+	if err := t.finish(); err != nil {
+		t.tx.Rollback()
+		return t.fail(err)
+	}
 	newGen := t.prevGen
 	if t.dirty {
 		newGen++
@@ -544,6 +736,28 @@ func (t *ImportTx) Commit(counts Source) error {
 	}
 	if t.dirty {
 		t.s.updateIndex(ctx, t.prevGen, newGen, t.textIDs, nil)
+	}
+	return nil
+}
+
+// finish writes what Put buffered: offers of new parts, the provenance
+// links, and the parametric indexes dropped for a bulk load.
+func (t *ImportTx) finish() error {
+	if err := t.flushNewOffers(); err != nil {
+		return err
+	}
+	for start := 0; start < len(t.linkIDs); start += linkBatch {
+		end := min(start+linkBatch, len(t.linkIDs))
+		if _, err := t.linkMany.ExecContext(t.ctx, t.srcID, idsJSON(t.linkIDs[start:end])); err != nil {
+			return err
+		}
+	}
+	if t.dropped {
+		for _, ddl := range paramIndexDDL() {
+			if _, err := t.tx.ExecContext(t.ctx, ddl); err != nil {
+				return err
+			}
+		}
 	}
 	return nil
 }

@@ -2,6 +2,7 @@ package catalog
 
 import (
 	"database/sql"
+	"errors"
 	"fmt"
 	"math"
 	"strconv"
@@ -109,7 +110,11 @@ func canonEnum(f *Field, v string) (string, bool) {
 // partRow validates p and returns its row. Text is trimmed; Enum values
 // take their dictionary spelling; the type must belong to the kind; Number
 // fields must exist, be finite and apply to the kind.
-func partRow(p *Part) (row, error) {
+func partRow(p *Part) (row, error) { return partRowInto(p, nil) }
+
+// partRowInto is partRow writing into r when it has room (the import
+// reuses one row per transaction).
+func partRowInto(p *Part, r row) (row, error) {
 	who := func() string { return strings.TrimSpace(p.Mfr) + " " + strings.TrimSpace(p.MPN) }
 	if NormKey(p.Mfr) == "" {
 		return nil, fmt.Errorf("part %q: manufacturer is empty", strings.TrimSpace(p.MPN))
@@ -123,7 +128,11 @@ func partRow(p *Part) (row, error) {
 		return nil, fmt.Errorf("part %s: kind %q is not one of %s", who(), p.Kind, strings.Join(kindF.Enum, ", "))
 	}
 	kind := Kind(k)
-	r := make(row, len(Fields))
+	if cap(r) < len(Fields) {
+		r = make(row, len(Fields))
+	}
+	r = r[:len(Fields)]
+	clear(r)
 	for i := range Fields {
 		f := &Fields[i]
 		switch f.Type {
@@ -166,13 +175,25 @@ func partRow(p *Part) (row, error) {
 			return nil, fmt.Errorf("part %s: type %q is not a %s type (one of %s)", who(), t, kind, strings.Join(Types[kind], ", "))
 		}
 	}
-	for name := range p.Num {
-		f, ok := FieldByName(name)
-		if !ok || f.Type != Number {
-			return nil, fmt.Errorf("part %s: %q is not a numeric field", who(), name)
+	if n := numCount(r); n != len(p.Num) {
+		for name := range p.Num {
+			if i, ok := fieldIndex[name]; !ok || Fields[i].Type != Number {
+				return nil, fmt.Errorf("part %s: %q is not a numeric field", who(), name)
+			}
 		}
 	}
 	return r, nil
+}
+
+// numCount counts the Number values of r.
+func numCount(r row) int {
+	n := 0
+	for _, v := range r {
+		if _, ok := v.(float64); ok {
+			n++
+		}
+	}
+	return n
 }
 
 func b2i(b bool) int64 {
@@ -198,6 +219,49 @@ func toPart(r row) Part {
 		}
 	}
 	return p
+}
+
+// jsonRow reads a row written by SQLite's json_array over fieldColumns.
+func jsonRow(js string) (row, error) {
+	v, err := parseJSON(js)
+	if err != nil {
+		return nil, err
+	}
+	vals, ok := v.([]any)
+	if !ok {
+		return nil, errors.New("row is not a JSON array")
+	}
+	if len(vals) != len(Fields) {
+		return nil, fmt.Errorf("row has %d values for %d fields", len(vals), len(Fields))
+	}
+	r := make(row, len(Fields))
+	for i, v := range vals {
+		switch x := v.(type) {
+		case float64:
+			switch Fields[i].Type {
+			case Bool:
+				r[i] = int64(x)
+			case Number:
+				r[i] = x
+			default:
+				r[i] = strconv.FormatFloat(x, 'g', -1, 64)
+			}
+		case string:
+			if x == "" {
+				continue
+			}
+			if Fields[i].Type == Number {
+				f, err := strconv.ParseFloat(x, 64)
+				if err != nil {
+					return nil, fmt.Errorf("field %s holds %q", Fields[i].Name, x)
+				}
+				r[i] = f
+				continue
+			}
+			r[i] = x
+		}
+	}
+	return r, nil
 }
 
 // scanDest returns scan destinations for a row and a function that reads

@@ -76,12 +76,14 @@ var paramIndexes = []struct {
 	{Fuse, "in"}, {Fuse, "un_dc"},
 }
 
+func paramIndexName(k Kind, field string) string { return "parts_" + string(k) + "_" + colName(field) }
+
 func paramIndexDDL() []string {
 	var out []string
 	for _, ix := range paramIndexes {
 		c := `"` + colName(ix.field) + `"`
-		out = append(out, fmt.Sprintf(`CREATE INDEX IF NOT EXISTS parts_%s_%s ON parts(%s) WHERE "kind" = '%s' AND %s IS NOT NULL`,
-			ix.kind, colName(ix.field), c, ix.kind, c))
+		out = append(out, fmt.Sprintf(`CREATE INDEX IF NOT EXISTS %s ON parts(%s) WHERE "kind" = '%s' AND %s IS NOT NULL`,
+			paramIndexName(ix.kind, ix.field), c, ix.kind, c))
 	}
 	return out
 }
