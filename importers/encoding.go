@@ -1,6 +1,7 @@
 package importers
 
 import (
+	"bufio"
 	"bytes"
 	"io"
 	"unicode"
@@ -126,6 +127,12 @@ func newDecoder(enc textEncoding, r io.Reader) io.Reader {
 	return transform.NewReader(r, utf8Fallback{})
 }
 
+// newFileDecoder is newDecoder over a region of a file, read in 64 KiB
+// blocks rather than the decoder's 4 KiB.
+func newFileDecoder(enc textEncoding, r io.ReaderAt, off, n int64) io.Reader {
+	return newDecoder(enc, bufio.NewReaderSize(io.NewSectionReader(r, off, n), 64<<10))
+}
+
 // decodeHead decodes the sniffed start of a file for delimiter sniffing.
 // A sequence cut off at the end may decode to U+FFFD; the caller drops the
 // last, incomplete line anyway.
@@ -147,6 +154,21 @@ type utf8Fallback struct{ transform.NopResetter }
 
 // Transform implements transform.Transformer.
 func (utf8Fallback) Transform(dst, src []byte, atEOF bool) (nDst, nSrc int, err error) {
+	// Fast path: a chunk of valid UTF-8 (ending on a rune boundary) is
+	// copied whole; utf8.Valid checks ASCII eight bytes at a time.
+	chunk := src[:min(len(src), len(dst))]
+	for i := len(chunk) - 1; i >= 0 && i >= len(chunk)-utf8.UTFMax; i-- {
+		if utf8.RuneStart(chunk[i]) {
+			if !utf8.FullRune(chunk[i:]) {
+				chunk = chunk[:i]
+			}
+			break
+		}
+	}
+	if utf8.Valid(chunk) {
+		nDst = copy(dst, chunk)
+		nSrc = nDst
+	}
 	for nSrc < len(src) {
 		// Copy the longest run of valid UTF-8 that fits into dst.
 		i := nSrc

@@ -78,7 +78,7 @@ func (b *textBook) blankToEnd(from int64) (bool, error) {
 	if from >= b.size {
 		return true, nil
 	}
-	dec := newDecoder(b.enc, io.NewSectionReader(b.r, int64(b.bomLen), b.size-int64(b.bomLen)))
+	dec := newFileDecoder(b.enc, b.r, int64(b.bomLen), b.size-int64(b.bomLen))
 	buf := make([]byte, 32<<10)
 	for {
 		n, err := dec.Read(buf)
@@ -114,7 +114,7 @@ func (b *textBook) Table(sheet string) (Table, error) {
 		return nil, &FileError{File: b.name, Kind: ErrUnknownSheet,
 			Reason: fmt.Sprintf("no sheet %q: a %s file has a single unnamed sheet", sheet, strings.ToUpper(b.Format()))}
 	}
-	var src io.Reader = newDecoder(b.enc, io.NewSectionReader(b.r, int64(b.bomLen), b.size-int64(b.bomLen)))
+	src := newFileDecoder(b.enc, b.r, int64(b.bomLen), b.size-int64(b.bomLen))
 	if b.crOnly {
 		src = crReader{src}
 	}
@@ -132,8 +132,9 @@ type textTable struct {
 	book *textBook
 	cr   *csv.Reader
 	lim  *recordLimiter
-	last int   // line of the last record returned
-	err  error // sticky error
+	last int      // line of the last record returned
+	err  error    // sticky error
+	slab []string // block the returned rows are carved from
 }
 
 // Next implements Table. The row number is the physical line on which the
@@ -170,8 +171,20 @@ func (t *textTable) Next() ([]string, int, error) {
 		if blank {
 			continue
 		}
-		return append([]string(nil), rec[:n]...), line, nil
+		return t.copyOut(rec[:n]), line, nil
 	}
+}
+
+// copyOut copies a record out of the csv.Reader's reused slice. Rows are
+// carved from a shared block to save an allocation per row; the capacity
+// is clipped so that appending to a row cannot overwrite the next one.
+func (t *textTable) copyOut(rec []string) []string {
+	if len(rec) > cap(t.slab)-len(t.slab) {
+		t.slab = make([]string, 0, max(4096, len(rec)))
+	}
+	i := len(t.slab)
+	t.slab = append(t.slab, rec...)
+	return t.slab[i:len(t.slab):len(t.slab)]
 }
 
 // wrap turns a read error into a *FileError.
