@@ -401,23 +401,32 @@ func (lo *layout) pairPrices() {
 // pairedField marks columns read through layout.pairs.
 const pairedField = "price pair"
 
-// score rates a row as a header candidate: the number of distinct targets
-// recognised, and whether one of them is the part number.
+// score rates a row as a header candidate: the number of distinct cell
+// texts recognised as fields (a merged group header repeated over its
+// columns counts once), whether they name at least two distinct fields,
+// and whether one of them is the part number.
 func score(cells []string, rec recognizer) (n int, mpn bool) {
 	seen := map[string]bool{}
+	texts := map[string]bool{}
 	for i, c := range cells {
 		if strings.TrimSpace(c) == "" {
 			continue
 		}
 		col := rec(c, i)
-		if col.Field == "" || seen[col.Field] {
+		if col.Field == "" {
 			continue
 		}
 		seen[col.Field] = true
-		n++
+		if k := headerKey(c); !texts[k] {
+			texts[k] = true
+			n++
+		}
 		if col.Field == "mpn" {
 			mpn = true
 		}
+	}
+	if len(seen) < 2 {
+		return 0, false
 	}
 	return n, mpn
 }

@@ -597,7 +597,7 @@ func classify(cells []string, lo *layout, header []string, afterGap bool) int {
 				recognised++
 			}
 		}
-		if recognised < 2 {
+		if recognised < 3 && !(recognised >= 2 && looksLikePartNumber(mpn)) {
 			return rowSkip
 		}
 	}
