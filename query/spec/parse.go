@@ -164,7 +164,6 @@ type parser struct {
 	file     string
 	lines    map[string]int
 	problems []Problem
-	order    []int
 }
 
 func (p *parser) line(key string) int {
