@@ -44,6 +44,10 @@ func openText(name string, r io.ReaderAt, size int64, head []byte, tsv bool) (Bo
 		return nil, &FileError{File: name, Kind: ErrNotSpreadsheet,
 			Reason: "not a spreadsheet (binary data, not text)"}
 	}
+	if isMarkup(text) {
+		return nil, &FileError{File: name, Kind: ErrNotSpreadsheet,
+			Reason: "not a spreadsheet (an HTML or XML document): save it as .xlsx or CSV"}
+	}
 	b := &textBook{name: name, r: r, size: size, enc: enc, bomLen: bomLen}
 	if isBlankText(text) {
 		blank, err := b.blankToEnd(int64(len(head)))
@@ -70,6 +74,20 @@ func openText(name string, r io.ReaderAt, size int64, head []byte, tsv bool) (Bo
 	}
 	b.comma = rune(sniffDelimiter(text, def))
 	return b, nil
+}
+
+// isMarkup reports whether text starts like an HTML page or an XML file
+// (some systems save HTML tables or XML spreadsheets under a spreadsheet
+// name).
+func isMarkup(text []byte) bool {
+	text = bytes.TrimLeft(text, " \t\r\n\ufeff")
+	head := strings.ToLower(string(text[:min(len(text), 16)]))
+	for _, p := range []string{"<?xml", "<!doctype html", "<html", "<table"} {
+		if strings.HasPrefix(head, p) {
+			return true
+		}
+	}
+	return false
 }
 
 // blankToEnd reports whether the file holds only white space after the

@@ -387,6 +387,9 @@ func TestReadTextErrors(t *testing.T) {
 		{"nul.csv", []byte("mpn,v\nD1,\x00\x00\n"), ErrNotSpreadsheet, "nul.csv: not a spreadsheet (binary data, not text)"},
 		{"old.xls", append([]byte{0xD0, 0xCF, 0x11, 0xE0, 0xA1, 0xB1, 0x1A, 0xE1}, make([]byte, 504)...), ErrEncrypted,
 			"old.xls: encrypted or legacy .xls workbook: save it as .xlsx or CSV"},
+		{"page.xls", []byte("\r\n<!DOCTYPE html><html><table><tr><td>mpn</td></tr></table></html>"), ErrNotSpreadsheet,
+			"page.xls: not a spreadsheet (an HTML or XML document): save it as .xlsx or CSV"},
+		{"xml2003.xls", []byte("\xef\xbb\xbf<?xml version=\"1.0\"?>\n<Workbook/>"), ErrNotSpreadsheet, ""},
 		{"gzip.csv", []byte{0x1f, 0x8b, 0x08, 0x00, 0x00, 0x00, 0x00, 0x00, 0x00, 0x03, 0x01, 0x02}, ErrNotSpreadsheet, ""},
 	}
 	for _, tt := range tests {
