@@ -48,7 +48,8 @@ var (
 //
 // Order of evidence: a byte order mark (UTF-8, UTF-16 LE/BE); then UTF-16
 // without a mark, recognised by NUL bytes in every other position (ASCII
-// text in UTF-16); then UTF-8 if head is valid UTF-8; Windows-1252 otherwise.
+// text in UTF-16); then UTF-8 if head is valid UTF-8 or holds more valid
+// multi-byte sequences than invalid bytes; Windows-1252 otherwise.
 // A UTF-8 file whose first 64 KiB are plain ASCII but which has
 // Windows-1252 bytes later is still read correctly, because the UTF-8
 // decoder reads each invalid byte as Windows-1252 (see utf8Fallback).
@@ -67,7 +68,33 @@ func detectEncoding(head []byte, complete bool) (textEncoding, int) {
 	if validUTF8Head(head, complete) {
 		return encUTF8, 0
 	}
+	if multi, invalid := utf8Census(head); multi > invalid {
+		// Mostly UTF-8 with some stray bytes, as when UTF-8 and
+		// Windows-1252 exports were pasted together: the UTF-8 decoder
+		// reads the stray bytes as Windows-1252.
+		return encUTF8, 0
+	}
 	return encWindows1252, 0
+}
+
+// utf8Census counts the valid multi-byte UTF-8 sequences and the bytes that
+// are not valid UTF-8 in b. Windows-1252 text seldom forms valid
+// multi-byte sequences; UTF-8 text is made of them.
+func utf8Census(b []byte) (multi, invalid int) {
+	for len(b) > 0 {
+		if b[0] < utf8.RuneSelf {
+			b = b[1:]
+			continue
+		}
+		r, size := utf8.DecodeRune(b)
+		if r == utf8.RuneError && size == 1 {
+			invalid++
+		} else {
+			multi++
+		}
+		b = b[size:]
+	}
+	return multi, invalid
 }
 
 // sniffUTF16 recognises UTF-16 text without a byte order mark: in the first

@@ -210,6 +210,13 @@ func TestReadTextEncodings(t *testing.T) {
 		{"utf16be-nobom", u16(xunicode.BigEndian, xunicode.IgnoreBOM), encUTF16BE},
 		{"windows-1252", cp, encWindows1252},
 	}
+	// Mostly UTF-8 with one stray Windows-1252 byte: read as UTF-8, the
+	// stray byte as Windows-1252.
+	mixed := []byte("mpn,desc\nD-1,40 V µ°\nD-2,Ω \xb5A\n")
+	if got, _ := detectEncoding(mixed, true); got != encUTF8 {
+		t.Errorf("mixed: detectEncoding = %v, want UTF-8", got)
+	}
+	readCompare(t, "mixed", readAllRows(t, "mixed.csv", mixed), append(want, readRow{3, []string{"D-2", "Ω µA"}}))
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			if got, _ := detectEncoding(tt.data, true); got != tt.enc {
