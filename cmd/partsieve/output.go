@@ -181,10 +181,11 @@ func keyRatings(p *catalog.Part) string {
 	return strings.Join(parts, ", ")
 }
 
-// bestOffer returns the lowest single-piece price among the part's offers
-// (the price of the smallest break) with its currency, and the total stock.
+// bestOffer returns the lowest single-piece price (the price of the
+// smallest break) per currency, lowest first ("0.39 USD / 0.395 EUR"; prices
+// in different currencies are not compared), and the total stock.
 func bestOffer(p *catalog.Part) (price string, stock string) {
-	best, cur := math.Inf(1), ""
+	best := map[string]float64{}
 	var total int64
 	known := false
 	for _, o := range p.Offers {
@@ -197,26 +198,39 @@ func bestOffer(p *catalog.Part) (price string, stock string) {
 		}
 		b := o.Breaks
 		sort.Slice(b, func(i, j int) bool { return b[i].Qty < b[j].Qty })
-		if b[0].Price < best {
-			best, cur = b[0].Price, o.Currency
+		if v, ok := best[o.Currency]; !ok || b[0].Price < v {
+			best[o.Currency] = b[0].Price
 		}
 	}
-	if !math.IsInf(best, 1) {
-		price = strings.TrimSpace(fmt.Sprintf("%s %s", money(best), cur))
+	curs := make([]string, 0, len(best))
+	for c := range best {
+		curs = append(curs, c)
 	}
+	sort.Slice(curs, func(i, j int) bool { return best[curs[i]] < best[curs[j]] || best[curs[i]] == best[curs[j]] && curs[i] < curs[j] })
+	var ps []string
+	for _, c := range curs {
+		ps = append(ps, strings.TrimSpace(money(best[c])+" "+c))
+	}
+	price = strings.Join(ps, " / ")
 	if known {
 		stock = strconv.FormatInt(total, 10)
 	}
 	return price, stock
 }
 
-// money writes a unit price with enough digits for small parts.
+// money writes a unit price with at least two decimals and no trailing
+// noise: 0.39 gives "0.39", 0.3375 gives "0.3375", 12 gives "12.00".
 func money(v float64) string {
-	switch {
-	case v >= 100:
-		return strconv.FormatFloat(v, 'f', 2, 64)
-	case v >= 1:
-		return strconv.FormatFloat(v, 'f', 3, 64)
+	s := strconv.FormatFloat(v, 'f', -1, 64)
+	if len(s) > 8 {
+		s = strconv.FormatFloat(v, 'f', 4, 64)
 	}
-	return strconv.FormatFloat(v, 'f', 4, 64)
+	dot := strings.IndexByte(s, '.')
+	switch {
+	case dot < 0:
+		return s + ".00"
+	case len(s)-dot-1 == 1:
+		return s + "0"
+	}
+	return s
 }

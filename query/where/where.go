@@ -66,6 +66,9 @@ func ParseAll(exprs []string) ([]catalog.Cond, error) {
 func splitAnd(expr string) []string {
 	var out []string
 	rest := expr
+	if t := strings.TrimSpace(rest); len(t) >= 4 && strings.EqualFold(t[len(t)-4:], " and") {
+		rest = t[:len(t)-4] + " and "
+	}
 	for {
 		lower := strings.ToLower(rest)
 		i, n := -1, 0
