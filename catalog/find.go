@@ -114,7 +114,7 @@ func (s *Store) ByMPN(ctx context.Context, mpn string) ([]Part, error) {
 		return nil, fmt.Errorf("catalog %s: %w", s.Path, err)
 	}
 	defer tx.Rollback()
-	ps, ids, err := scanParts(ctx, tx, `SELECT parts.id, `+fieldColumns+` FROM parts WHERE parts.mpn_key = ? ORDER BY parts.mfr_key`, key)
+	ps, ids, err := scanParts(ctx, tx, `SELECT parts.id, `+partJSON()+` FROM parts WHERE parts.mpn_key = ? ORDER BY parts.mfr_key`, key)
 	if err == nil {
 		err = loadOffers(ctx, tx, ps, ids)
 	}
@@ -302,7 +302,7 @@ func (fq *findSQL) build(phase, limit int) (string, []any) {
 	var b strings.Builder
 	var args []any
 	join := fq.hasIDs && phase != 1
-	b.WriteString(`SELECT parts.id, ` + fieldColumns + ` FROM `)
+	b.WriteString(`SELECT parts.id, ` + partJSON() + ` FROM `)
 	if join {
 		b.WriteString(`json_each(?) AS t CROSS JOIN parts ON parts.id = t.value`)
 		args = append(args, fq.ids)
@@ -353,23 +353,27 @@ func (fq *findSQL) build(phase, limit int) (string, []any) {
 	return b.String(), args
 }
 
-// scanParts runs a SELECT of parts.id and the field columns; it returns
-// the parts and their ids.
+// scanParts runs a SELECT of parts.id and partJSON; it returns the parts
+// and their ids.
 func scanParts(ctx context.Context, q queryer, stmt string, args ...any) ([]Part, []int64, error) {
 	rows, err := q.QueryContext(ctx, stmt, args...)
 	if err != nil {
 		return nil, nil, err
 	}
 	defer rows.Close()
-	var id int64
-	rs := newRowScanner(&id)
 	var out []Part
 	var ids []int64
 	for rows.Next() {
-		if err := rows.Scan(rs.dest...); err != nil {
+		var id int64
+		var js string
+		if err := rows.Scan(&id, &js); err != nil {
 			return nil, nil, err
 		}
-		out = append(out, toPart(rs.row()))
+		r, err := jsonRow(js)
+		if err != nil {
+			return nil, nil, fmt.Errorf("part %d: %w", id, err)
+		}
+		out = append(out, toPart(r))
 		ids = append(ids, id)
 	}
 	return out, ids, rows.Err()

@@ -31,8 +31,6 @@ func openAt(t testing.TB, path string) *Store {
 	return s
 }
 
-func ptr[T any](v T) *T { return &v }
-
 // part builds a test part: kind, mfr, mpn, then name/value pairs. Values of
 // type float64 go to Num, strings to text fields, bools to Bool fields.
 func part(kind Kind, mfr, mpn string, kv ...any) *Part {

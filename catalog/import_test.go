@@ -305,3 +305,100 @@ func TestRemoveSource(t *testing.T) {
 		t.Errorf("Check after removal: %v %v", probs, err)
 	}
 }
+
+// A large import into a small catalog drops the parametric indexes and
+// rebuilds them at Commit; a rollback restores them.
+func TestBulkImportIndexes(t *testing.T) {
+	saved := bulkThreshold
+	bulkThreshold = 5
+	defer func() { bulkThreshold = saved }()
+	s := openTemp(t)
+	ctx := context.Background()
+	indexes := func() int {
+		var n int
+		s.db.QueryRow(`SELECT count(*) FROM sqlite_schema WHERE type = 'index' AND name LIKE 'parts\_%' ESCAPE '\'`).Scan(&n)
+		return n
+	}
+	if n := indexes(); n != len(paramIndexes) {
+		t.Fatalf("%d parametric indexes", n)
+	}
+	ps := genParts(40, 3)
+	for _, commit := range []bool{false, true} {
+		tx, err := s.BeginImport(ctx, Source{Label: "bulk"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, p := range ps {
+			if _, _, err := tx.Put(p); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if !tx.dropped {
+			t.Fatal("indexes not dropped")
+		}
+		if commit {
+			err = tx.Commit(Source{})
+		} else {
+			err = tx.Rollback()
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		if n := indexes(); n != len(paramIndexes) {
+			t.Errorf("commit=%v: %d parametric indexes afterwards", commit, n)
+		}
+	}
+	if got := len(findAll(t, s)); got != 40 {
+		t.Errorf("%d parts", got)
+	}
+	var offers, links int
+	s.db.QueryRow(`SELECT count(*) FROM offers`).Scan(&offers)
+	s.db.QueryRow(`SELECT count(*) FROM part_sources`).Scan(&links)
+	if offers != 40 || links != 40 {
+		t.Errorf("%d offers, %d provenance links", offers, links)
+	}
+	if probs, err := s.Check(ctx); err != nil || len(probs) != 0 {
+		t.Errorf("Check: %q %v", probs, err)
+	}
+}
+
+// A part new in this import, listed again in the same file: its offers
+// are still buffered when the second row arrives.
+func TestPutRepeatedNewPartInOneImport(t *testing.T) {
+	s := openTemp(t)
+	tx, err := s.BeginImport(context.Background(), Source{Label: "f"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer tx.Rollback()
+	mk := func(price float64) *Part {
+		p := part(Fuse, "Lumen Fuse", "LF-1A-F", "type", "F", "in", 1)
+		p.Offers = []Offer{offer("Northwind Parts", "NW-9", 10, 1, "EUR", PriceBreak{1, price}),
+			offer("Northwind Parts", "NW-9", 99, 1, "EUR")} // same offer twice: the first wins
+		return p
+	}
+	for i, want := range []Outcome{Added, Unchanged, Updated} {
+		price := 0.1
+		if i == 2 {
+			price = 0.2
+		}
+		p := mk(price)
+		if i > 0 {
+			p.Offers = p.Offers[:1]
+		}
+		o, ch, err := tx.Put(p)
+		if err != nil || o != want {
+			t.Fatalf("row %d: %v %v %v", i+1, o, ch, err)
+		}
+		if i == 2 && (len(ch) != 1 || ch[0].Field != "offer Northwind Parts/NW-9 price_breaks" || ch[0].Old != "1: 0.1" || ch[0].New != "1: 0.2") {
+			t.Errorf("changes %+v", ch)
+		}
+	}
+	if err := tx.Commit(Source{}); err != nil {
+		t.Fatal(err)
+	}
+	ps, _ := s.ByMPN(context.Background(), "LF-1A-F")
+	if len(ps) != 1 || len(ps[0].Offers) != 1 || *ps[0].Offers[0].Stock != 10 || ps[0].Offers[0].Breaks[0].Price != 0.2 {
+		t.Errorf("stored %+v", ps)
+	}
+}

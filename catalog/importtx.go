@@ -57,8 +57,10 @@ const (
 	offerCols     = 9
 	newOfferBatch = 100
 	linkBatch     = 50000
-	bulkThreshold = 20000
 )
+
+// bulkThreshold is a variable so that tests can exercise the bulk path.
+var bulkThreshold = 20000
 
 // BeginImport starts the transaction of one import from src (label, file,
 // hash). Only one import runs at a time; a second waits (busy timeout) or
@@ -120,10 +122,7 @@ func (t *ImportTx) prepare() error {
 		}
 		*dst, err = t.tx.PrepareContext(ctx, q)
 	}
-	// One JSON column instead of one column per field: database/sql's
-	// per-column cost dominates a wide row, and SQLite writes REALs in
-	// JSON with enough digits to read back the same float64.
-	prep(&t.selPart, `SELECT parts.id, json_array(`+fieldColumns+`) FROM parts WHERE mpn_key = ? AND mfr_key = ?`)
+	prep(&t.selPart, `SELECT parts.id, `+partJSON()+` FROM parts WHERE mpn_key = ? AND mfr_key = ?`)
 	prep(&t.updPart, `UPDATE parts SET `+sets.String()+`, updated = ? WHERE id = ?`)
 	prep(&t.linkMany, `INSERT OR IGNORE INTO part_sources(part_id, source_id) SELECT value, ? FROM json_each(?)`)
 	prep(&t.flushOffers, offerInsertSQL(newOfferBatch))

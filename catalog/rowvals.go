@@ -1,7 +1,6 @@
 package catalog
 
 import (
-	"database/sql"
 	"errors"
 	"fmt"
 	"math"
@@ -107,13 +106,10 @@ func canonEnum(f *Field, v string) (string, bool) {
 	return "", false
 }
 
-// partRow validates p and returns its row. Text is trimmed; Enum values
+// partRowInto validates p and returns its row. Text is trimmed; Enum values
 // take their dictionary spelling; the type must belong to the kind; Number
 // fields must exist, be finite and apply to the kind.
-func partRow(p *Part) (row, error) { return partRowInto(p, nil) }
-
-// partRowInto is partRow writing into r when it has room (the import
-// reuses one row per transaction).
+// It writes into r when r has room (the import reuses one row).
 func partRowInto(p *Part, r row) (row, error) {
 	who := func() string { return strings.TrimSpace(p.Mfr) + " " + strings.TrimSpace(p.MPN) }
 	if NormKey(p.Mfr) == "" {
@@ -264,72 +260,6 @@ func jsonRow(js string) (row, error) {
 	return r, nil
 }
 
-// scanDest returns scan destinations for a row and a function that reads
-// them back into r.
-type rowScanner struct {
-	nums  []sql.NullFloat64
-	strs  []sql.NullString
-	ints  []sql.NullInt64
-	dest  []any
-	slots []int // per field: index into nums/strs/ints
-}
-
-func newRowScanner(extra ...any) *rowScanner {
-	rs := &rowScanner{slots: make([]int, len(Fields))}
-	for _, f := range Fields {
-		switch f.Type {
-		case Number:
-			rs.nums = append(rs.nums, sql.NullFloat64{})
-		case Bool:
-			rs.ints = append(rs.ints, sql.NullInt64{})
-		default:
-			rs.strs = append(rs.strs, sql.NullString{})
-		}
-	}
-	rs.dest = append(rs.dest, extra...)
-	var n, s, b int
-	for i, f := range Fields {
-		switch f.Type {
-		case Number:
-			rs.dest = append(rs.dest, &rs.nums[n])
-			rs.slots[i] = n
-			n++
-		case Bool:
-			rs.dest = append(rs.dest, &rs.ints[b])
-			rs.slots[i] = b
-			b++
-		default:
-			rs.dest = append(rs.dest, &rs.strs[s])
-			rs.slots[i] = s
-			s++
-		}
-	}
-	return rs
-}
-
-// row converts the last scanned values.
-func (rs *rowScanner) row() row {
-	r := make(row, len(Fields))
-	for i, f := range Fields {
-		j := rs.slots[i]
-		switch f.Type {
-		case Number:
-			if rs.nums[j].Valid {
-				r[i] = rs.nums[j].Float64
-			}
-		case Bool:
-			if rs.ints[j].Valid {
-				r[i] = rs.ints[j].Int64
-			}
-		default:
-			if rs.strs[j].Valid && rs.strs[j].String != "" {
-				r[i] = rs.strs[j].String
-			}
-		}
-	}
-	return r
-}
-
 // fieldColumns is the comma-separated list of the parts field columns in
 // dictionary order, qualified by the table.
 var fieldColumns = fieldColumnList()
@@ -344,6 +274,12 @@ func fieldColumnList() string {
 	}
 	return b.String()
 }
+
+// partJSON is the SELECT expression of all field columns as one JSON
+// array (see jsonRow): database/sql's per-column cost dominates a row of
+// many columns, and SQLite writes REALs in JSON with enough digits to read
+// back the same float64.
+func partJSON() string { return "json_array(" + fieldColumns + ")" }
 
 // sameValue compares two row values; numbers are equal within a relative
 // 1e-9 (parse noise such as 45e-3 vs 0.045).

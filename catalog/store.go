@@ -61,7 +61,7 @@ func (s *Store) notify(format string, args ...any) {
 func dsn(path string) string {
 	u := url.URL{Scheme: "file", Opaque: (&url.URL{Path: path}).EscapedPath()}
 	q := "_pragma=busy_timeout(" + strconv.FormatInt(busyTimeout.Milliseconds(), 10) + ")" +
-		"&_pragma=journal_mode(WAL)&_pragma=foreign_keys(1)&_pragma=synchronous(NORMAL)&_pragma=cache_size(-65536)&_txlock=immediate"
+		"&_pragma=journal_mode(WAL)&_pragma=foreign_keys(1)&_pragma=synchronous(NORMAL)&_pragma=cache_size(-65536)&_pragma=journal_size_limit(67108864)&_txlock=immediate"
 	return u.String() + "?" + q
 }
 
