@@ -59,6 +59,8 @@ names are used by --where, --sort, mapping files and JSON output.`,
 				}
 				return writeCSV(a.stdout, []string{"field", "kinds", "unit", "meaning", "header_words"}, rows)
 			}
+			fmt.Fprintln(a.stdout, "Headers match ignoring case, spaces, underscores, dashes and subscript\nparentheses (V_RRM, Vrrm and VRRM are the same), with the unit in the header\nor the cells; a test condition in the header (\"RDS(on) max @ 10V\") fills the\ncondition field. Canonical names always work as headers.")
+			fmt.Fprintln(a.stdout)
 			for _, fi := range infos {
 				unit := fi.Unit
 				if unit == "" {
