@@ -206,7 +206,9 @@ func bestOffer(p *catalog.Part) (price string, stock string) {
 	for c := range best {
 		curs = append(curs, c)
 	}
-	sort.Slice(curs, func(i, j int) bool { return best[curs[i]] < best[curs[j]] || best[curs[i]] == best[curs[j]] && curs[i] < curs[j] })
+	sort.Slice(curs, func(i, j int) bool {
+		return best[curs[i]] < best[curs[j]] || best[curs[i]] == best[curs[j]] && curs[i] < curs[j]
+	})
 	var ps []string
 	for _, c := range curs {
 		ps = append(ps, strings.TrimSpace(money(best[c])+" "+c))
