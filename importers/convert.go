@@ -75,7 +75,13 @@ func (lo *layout) header(i int, fallback string) string {
 	if i < 0 || i >= len(lo.headers) {
 		return fallback
 	}
-	if h := cleanSpaces(lo.headers[i]); h != "" {
+	if lo.clean == nil {
+		lo.clean = make([]string, len(lo.headers))
+		for j, h := range lo.headers {
+			lo.clean[j] = cleanSpaces(h)
+		}
+	}
+	if h := lo.clean[i]; h != "" {
 		return h
 	}
 	return fallback

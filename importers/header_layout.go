@@ -13,6 +13,7 @@ import (
 // field, under which unit and test conditions.
 type layout struct {
 	headers []string         // as written, by column index
+	clean   []string         // headers with spaces cleaned, for messages (filled on first use)
 	cols    []Column         // by column index; Field "" = not used
 	byField map[string][]int // target -> columns, first preferred
 	unknown []string         // headers not recognised

@@ -28,6 +28,8 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"sort"
+	"strconv"
 	"strings"
 	"time"
 
@@ -723,7 +725,7 @@ type checkSink struct {
 
 func (c *checkSink) Put(p *catalog.Part) (catalog.Outcome, []catalog.Change, error) {
 	key := catalog.NormKey(p.Mfr) + "\x00" + catalog.NormKey(p.MPN)
-	fp := fmt.Sprintf("%+v|%v|%v", *p, deref(p.RoHS), deref(p.AECQ))
+	fp := fingerprint(p)
 	prev, ok := c.seen[key]
 	c.seen[key] = fp
 	switch {
@@ -733,6 +735,38 @@ func (c *checkSink) Put(p *catalog.Part) (catalog.Outcome, []catalog.Change, err
 		return catalog.Unchanged, nil, nil
 	}
 	return catalog.Updated, nil, nil
+}
+
+// fingerprint writes everything Put would store of p.
+func fingerprint(p *catalog.Part) string {
+	var b strings.Builder
+	for _, s := range []string{string(p.Kind), p.Type, p.Mfr, p.MPN, p.Desc, p.Package, p.Datasheet, p.Lifecycle,
+		deref(p.RoHS), deref(p.AECQ), p.FuseStd, p.Rerate} {
+		b.WriteString(s)
+		b.WriteByte(0)
+	}
+	names := make([]string, 0, len(p.Num))
+	for k := range p.Num {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	for _, k := range names {
+		b.WriteString(k)
+		b.WriteByte('=')
+		b.WriteString(strconv.FormatFloat(p.Num[k], 'g', -1, 64))
+		b.WriteByte(0)
+	}
+	for _, o := range p.Offers {
+		fmt.Fprintf(&b, "%s|%s|%s|%d|%s|%v\x00", o.Supplier, o.SKU, deref64(o.Stock), o.MOQ, o.Currency, o.Breaks)
+	}
+	return b.String()
+}
+
+func deref64(n *int64) string {
+	if n == nil {
+		return "-"
+	}
+	return strconv.FormatInt(*n, 10)
 }
 
 func deref(b *bool) string {

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"regexp"
 	"strings"
+	"sync"
 	"unicode"
 
 	"partsieve/catalog"
@@ -174,6 +175,39 @@ func has(t, p string) int {
 // that kind. A cell that is one type word or letter ("Schottky", "T",
 // "P") is exact. within is the kind known from elsewhere, "" if none.
 func wordsGuess(text string, within catalog.Kind) guess {
+	if len(text) > 200 {
+		return guessWords(text, within)
+	}
+	k := guessKey{text, within}
+	guessCache.Lock()
+	g, ok := guessCache.m[k]
+	guessCache.Unlock()
+	if ok {
+		return g
+	}
+	g = guessWords(text, within)
+	guessCache.Lock()
+	if len(guessCache.m) >= 4096 {
+		clear(guessCache.m)
+	}
+	guessCache.m[k] = g
+	guessCache.Unlock()
+	return g
+}
+
+// guessCache remembers the words of category and type cells, which repeat
+// down a sheet.
+var guessCache = struct {
+	sync.Mutex
+	m map[guessKey]guess
+}{m: map[guessKey]guess{}}
+
+type guessKey struct {
+	text   string
+	within catalog.Kind
+}
+
+func guessWords(text string, within catalog.Kind) guess {
 	t := normText(text)
 	if len(t) <= 2 {
 		return guess{}

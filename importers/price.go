@@ -16,6 +16,16 @@ import (
 // cellCurrency finds a currency written in a price cell ("€0.42", "0,42
 // EUR", "$1.20", "0.42 €") and returns the cell without it.
 func cellCurrency(s string) (rest, cur string) {
+	plain := true
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; !(c >= '0' && c <= '9' || c == '.' || c == ',' || c == ' ' || c == '-' || c == '\'') {
+			plain = false
+			break
+		}
+	}
+	if plain {
+		return strings.TrimSpace(s), ""
+	}
 	rest = s
 	for _, sym := range [...]string{"US$", "CN¥", "€", "$", "£", "¥", "₹", "₩"} {
 		if strings.Contains(rest, sym) {
