@@ -2,6 +2,7 @@ package catalog
 
 import (
 	"context"
+	"errors"
 	"reflect"
 	"strings"
 	"testing"
@@ -165,8 +166,8 @@ func TestPutRejectsBadParts(t *testing.T) {
 	}
 	for _, c := range cases {
 		_, _, err := tx.Put(c.p)
-		if err == nil || err.Error() != c.want {
-			t.Errorf("Put(%s %s) = %v\nwant %s", c.p.Mfr, c.p.MPN, err, c.want)
+		if err == nil || err.Error() != c.want || !errors.Is(err, ErrInvalidPart) {
+			t.Errorf("Put(%s %s) = %v\nwant %s (ErrInvalidPart)", c.p.Mfr, c.p.MPN, err, c.want)
 		}
 	}
 	// the transaction is still usable

@@ -167,6 +167,17 @@ func (t *ImportTx) insertStmt(r row) (*sql.Stmt, error) {
 
 var errFinished = errors.New("the import is already committed or rolled back")
 
+// ErrInvalidPart is matched (errors.Is) by the errors Put returns for a
+// part it refuses before writing anything: the caller can report the row
+// and go on. Other Put errors are database failures that end the import.
+var ErrInvalidPart = errors.New("invalid part")
+
+type invalidPart struct{ err error }
+
+func (e invalidPart) Error() string        { return e.err.Error() }
+func (e invalidPart) Unwrap() error        { return e.err }
+func (e invalidPart) Is(target error) bool { return target == ErrInvalidPart }
+
 // textFields are the fields the text index holds; a change to one of them
 // re-indexes the part.
 var textFields = map[string]bool{"kind": true, "type": true, "mfr": true, "mpn": true, "desc": true, "package": true}
@@ -186,20 +197,20 @@ var textFields = map[string]bool{"kind": true, "type": true, "mfr": true, "mpn":
 //
 // An invalid part (empty manufacturer or part number, unknown kind, type
 // or enum word, non-finite number, field that does not apply to the kind,
-// bad offer) returns an error before anything is written: the import can
-// go on with the next part.
+// bad offer) returns an error matching ErrInvalidPart before anything is
+// written: the import can go on with the next part.
 func (t *ImportTx) Put(p *Part) (Outcome, []Change, error) {
 	if t.done {
 		return 0, nil, errFinished
 	}
 	nr, err := partRowInto(p, t.row)
 	if err != nil {
-		return 0, nil, err
+		return 0, nil, invalidPart{err}
 	}
 	t.row = nr
 	offers, err := t.normOffers(p)
 	if err != nil {
-		return 0, nil, err
+		return 0, nil, invalidPart{err}
 	}
 	mk, pk := NormKey(p.Mfr), NormKey(p.MPN)
 	// A new part costs one INSERT; an existing one a lookup. Which to try

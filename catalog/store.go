@@ -54,10 +54,13 @@ func (s *Store) notify(format string, args ...any) {
 }
 
 // dsn builds the SQLite data source name. Every pooled connection runs the
-// pragmas; busy_timeout is applied first. _txlock=immediate makes every
-// read-write transaction take the write lock at BEGIN, so a writer never
-// fails on a lock upgrade (SQLITE_BUSY_SNAPSHOT), which busy_timeout does not
-// cover.
+// pragmas; busy_timeout is applied first. WAL lets readers work while one
+// writer imports; synchronous=NORMAL is durable at checkpoints and safe in
+// WAL. cache_size (64 MiB, allocated as needed) keeps a bulk import's
+// pages in memory; journal_size_limit trims the WAL file after a large
+// import. _txlock=immediate makes every read-write transaction take the
+// write lock at BEGIN, so a writer never fails on a lock upgrade
+// (SQLITE_BUSY_SNAPSHOT), which busy_timeout does not cover.
 func dsn(path string) string {
 	u := url.URL{Scheme: "file", Opaque: (&url.URL{Path: path}).EscapedPath()}
 	q := "_pragma=busy_timeout(" + strconv.FormatInt(busyTimeout.Milliseconds(), 10) + ")" +

@@ -197,8 +197,7 @@ func (s *Store) rebuildLocked(ctx context.Context) error {
 		return fmt.Errorf("text index: %w", err)
 	}
 	os.Remove(tmp) // bleve wants to create it
-	n, err := s.buildIndex(ctx, tmp)
-	if err != nil {
+	if _, err := s.buildIndex(ctx, tmp); err != nil {
 		os.RemoveAll(tmp)
 		return fmt.Errorf("text index: rebuild failed: %w", err)
 	}
@@ -224,7 +223,6 @@ func (s *Store) rebuildLocked(ctx context.Context) error {
 		return fmt.Errorf("text index: cannot open the rebuilt index: %w", err)
 	}
 	s.ix, s.ixRW = ix, false
-	_ = n
 	return nil
 }
 
