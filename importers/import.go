@@ -307,7 +307,7 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 	if rn.m != nil && rn.m.HasRow {
 		fixedRow = rn.m.HeaderRow
 	}
-	for noHeader == false {
+	for !noHeader {
 		if fixedRow == 0 && len(buf) >= headerScan {
 			break
 		}
@@ -613,7 +613,7 @@ func looksLikePartNumber(s string) bool {
 	if t == "" || len(t) > 40 || strings.ContainsAny(t, " \t") {
 		return false
 	}
-	return strings.IndexAny(t, "0123456789") >= 0
+	return strings.ContainsAny(t, "0123456789")
 }
 
 func sameRow(a, b []string) bool {
