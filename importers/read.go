@@ -133,9 +133,15 @@ var (
 // as delimited text (encoding and delimiter sniffed from the first 64 KiB,
 // see openText) unless it looks binary. The extension only breaks ties: a
 // ".tsv" file defaults to tab when no delimiter stands out. Both readers
-// stream: neither holds more than one row of a CSV file in memory, and an
-// XLSX file is unpacked by excelize (compressed bytes in memory, sheets
-// over 16 MiB unpacked to temporary files that Close removes).
+// stream. A text file is read through 64 KiB buffers, one record at a time
+// (at most MaxRecordBytes). An XLSX file is unpacked by excelize: the
+// packed file and its small parts are held in memory, sheets over 16 MiB
+// go to temporary files that Close removes, and UnzipSizeLimit bounds the
+// unpacked total.
+//
+// Rows come from Book.Table; see textTable.Next and xlsxTable.Next for how
+// rows are numbered, which rows are skipped and how merged cells are
+// filled. Every error is a *FileError.
 func OpenBook(name string, r io.ReaderAt, size int64) (Book, error) {
 	if size <= 0 {
 		return nil, &FileError{File: name, Kind: ErrEmpty}

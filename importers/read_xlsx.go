@@ -340,10 +340,12 @@ type mergeRange struct {
 
 // scanMerges reads the <mergeCell ref="A1:C1"/> elements of a worksheet
 // part. They come after the cell data, so streaming rows cannot see them in
-// time; excelize's GetMergeCells would load the whole sheet into memory as
-// a tree. Instead the part is unpacked once more and scanned as bytes,
-// which costs about a tenth of the row parsing and also checks the part's
-// CRC. The ranges are returned sorted by first row.
+// time. excelize's GetMergeCells loads the whole sheet into memory as a
+// tree (and Rows then serialises that tree again): on a 100,000 × 20 sheet
+// (113 MB of XML) the process peaked at 2 GB against 51 MB with this scan.
+// Instead the part is unpacked once more and scanned as bytes, which took
+// 2.5 % of the reading time in BenchmarkReadXLSX and also checks the
+// part's CRC. The ranges are returned sorted by first row.
 func (b *xlsxBook) scanMerges(sheet, part string) ([]mergeRange, error) {
 	zf := b.open(part)
 	if zf == nil {
