@@ -1,0 +1,337 @@
+package topology
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"partsieve/catalog"
+	"partsieve/query/spec"
+)
+
+// cand is a qualifying design during ranking: indices into the role
+// slices and the figures it is ranked by.
+type cand struct {
+	a, b      int // part indices (diode, fuse, FET); b: shunt diode of a pair, else -1
+	z         *zchoice
+	m         metrics
+	margin    float64
+	marginID  checkID
+	cost      float64
+	costKnown bool
+	mpn       string
+}
+
+// Evaluate picks candidates for spec s from the prepared catalog cat.
+// It is the core of `partsieve pick`; Pick adds the catalog access.
+func Evaluate(s *spec.Spec, cat *Catalog, opt Options) *Result {
+	e := newEngine(s, cat, opt)
+	r := &Result{
+		Spec: s.File, Policy: e.pr.Name, Rank: e.opt.Rank, Top: e.opt.Top,
+		Quantity: s.Build.Quantity, Currency: s.Build.Currency,
+		Notes: append([]string(nil), s.Notes...), Cautions: Cautions,
+	}
+	for _, t := range e.opt.Topologies {
+		var tr TopologyResult
+		switch t {
+		case SeriesDiode:
+			tr = e.runSeries()
+		case ShuntFuse:
+			tr = e.runShunt()
+		case PFETHigh:
+			tr = e.runFET(false)
+		case NFETLow:
+			tr = e.runFET(true)
+		default:
+			continue
+		}
+		r.Topologies = append(r.Topologies, tr)
+	}
+	for _, tr := range r.Topologies {
+		r.Comparison = append(r.Comparison, compareRow(&tr, s.Build.Currency))
+	}
+	return r
+}
+
+func compareRow(tr *TopologyResult, cur string) CompareRow {
+	row := CompareRow{Topology: tr.Topology, Currency: cur, Status: "none",
+		Loss: Num(math.NaN()), Drop: Num(math.NaN()), Cost: Num(math.NaN()), MinMargin: Num(math.NaN())}
+	var best *Candidate
+	switch {
+	case len(tr.Candidates) > 0:
+		best, row.Status = &tr.Candidates[0], "ok"
+	case len(tr.RankedOut) > 0:
+		best, row.Status = &tr.RankedOut[0], "unsafe"
+	}
+	row.Hazards = append(row.Hazards, tr.Hazards...)
+	if best == nil {
+		if tr.NoneReason != "" {
+			row.Hazards = append(row.Hazards, tr.NoneReason)
+		}
+		return row
+	}
+	var mpns []string
+	for _, p := range best.Parts {
+		mpns = append(mpns, p.MPN)
+	}
+	row.Parts = strings.Join(mpns, " + ")
+	row.Loss, row.Drop, row.Cost, row.MinMargin = best.Loss, best.Drop, best.Cost, best.MinMargin
+	row.Hazards = append(row.Hazards, best.Hazards...)
+	return row
+}
+
+// less orders candidates by the ranking, then by MPN for stable output.
+func (e *engine) less(x, y *cand) bool {
+	switch e.opt.Rank {
+	case RankMargin:
+		if x.margin != y.margin {
+			return x.margin > y.margin
+		}
+	case RankCost:
+		xc, yc := x.cost, y.cost
+		if !x.costKnown {
+			xc = math.Inf(1)
+		}
+		if !y.costKnown {
+			yc = math.Inf(1)
+		}
+		if xc != yc {
+			return xc < yc
+		}
+	}
+	if x.m.loss != y.m.loss {
+		return x.m.loss < y.m.loss
+	}
+	if x.margin != y.margin {
+		return x.margin > y.margin
+	}
+	return x.mpn < y.mpn
+}
+
+func (e *engine) sortCands(cs []cand) {
+	sort.Slice(cs, func(i, j int) bool { return e.less(&cs[i], &cs[j]) })
+}
+
+// costOf fills the candidate's cost from its parts.
+func (e *engine) costOf(x *cand, parts ...*catalog.Part) {
+	sum, known := 0.0, true
+	for _, p := range parts {
+		if p == nil {
+			continue
+		}
+		u := e.cost(p).unit
+		if math.IsNaN(u) {
+			known = false
+			continue
+		}
+		sum += u
+	}
+	x.cost, x.costKnown = sum, known
+}
+
+func (e *engine) partRef(role string, p *catalog.Part) PartRef {
+	pc := e.cost(p)
+	return PartRef{Role: role, Mfr: p.Mfr, MPN: p.MPN, Type: p.Type, Package: p.Package,
+		UnitPrice: Num(pc.unit), Supplier: pc.supplier, Stock: pc.stock, PriceNote: pc.note}
+}
+
+// candidate builds the output form of x from its parts and recorded checks.
+func (e *engine) candidate(rank int, x *cand, refs []PartRef, checks []Check) Candidate {
+	c := Candidate{Rank: rank, Parts: refs, Loss: Num(x.m.loss), Drop: Num(x.m.drop), TjHot: Num(x.m.tj),
+		DropCorner: "hot", MinMargin: Num(x.margin), Currency: e.s.Build.Currency, Checks: checks}
+	if x.m.dropCold {
+		c.DropCorner = "cold"
+	}
+	if math.IsInf(x.margin, 1) {
+		c.MinMargin = Num(math.NaN())
+	} else {
+		c.MinMarginCheck = defs[x.marginID].role + ": " + defs[x.marginID].name
+	}
+	c.Cost = Num(math.NaN())
+	if x.costKnown {
+		c.Cost = Num(x.cost)
+	}
+	for _, r := range refs {
+		if r.Stock != nil && (c.Stock == nil || *r.Stock < *c.Stock) {
+			v := *r.Stock
+			c.Stock = &v
+		}
+	}
+	return c
+}
+
+func eliminations(counts *[numChecks]int) []Elimination {
+	var out []Elimination
+	for id, n := range counts {
+		if n > 0 {
+			out = append(out, Elimination{Check: defs[id].name, Role: defs[id].role, Count: n})
+		}
+	}
+	sortElims(out)
+	return out
+}
+
+func sortElims(out []Elimination) {
+	sort.SliceStable(out, func(i, j int) bool {
+		if out[i].Count != out[j].Count {
+			return out[i].Count > out[j].Count
+		}
+		return out[i].Role+out[i].Check < out[j].Role+out[j].Check
+	})
+}
+
+// noneReason names the check that eliminated most parts.
+func noneReason(tr *TopologyResult) string {
+	if len(tr.Eliminated) == 0 {
+		total := 0
+		for _, n := range tr.Evaluated {
+			total += n
+		}
+		if total == 0 {
+			return "no part qualifies: the catalog holds no part for this topology"
+		}
+		return "no part qualifies"
+	}
+	e := tr.Eliminated[0]
+	return fmt.Sprintf("no part qualifies: %q (%s) eliminated most parts (%d)", e.Check, e.Role, e.Count)
+}
+
+func (e *engine) finish(tr *TopologyResult) {
+	if tr.Qualified == 0 && len(tr.RankedOut) == 0 {
+		tr.NoneReason = noneReason(tr)
+	}
+	if tr.Candidates == nil {
+		tr.Candidates = []Candidate{}
+	}
+	if tr.Eliminated == nil {
+		tr.Eliminated = []Elimination{}
+	}
+}
+
+// runSeries evaluates every diode as a series diode.
+func (e *engine) runSeries() TopologyResult {
+	tr := TopologyResult{Topology: SeriesDiode, Title: SeriesDiode.Title(), Evaluated: map[string]int{"diode": len(e.cat.diodes)}}
+	var counts [numChecks]int
+	var c checker
+	var cs []cand
+	for i := range e.cat.diodes {
+		d := &e.cat.diodes[i]
+		c.reset(false, e.s.Ambient.TMax)
+		m := e.seriesDiode(d, &c)
+		if c.failed {
+			counts[c.first]++
+			continue
+		}
+		cs = append(cs, cand{a: i, b: -1, m: m, margin: c.minMargin, marginID: c.minID, mpn: d.p.MPN})
+	}
+	e.rankCosts(cs, func(x *cand) []*catalog.Part { return []*catalog.Part{e.cat.diodes[x.a].p} })
+	tr.Qualified = len(cs)
+	for k := range cs[:min(len(cs), e.opt.Top)] {
+		x := &cs[k]
+		d := &e.cat.diodes[x.a]
+		c.reset(true, e.s.Ambient.TMax)
+		e.seriesDiode(d, &c)
+		e.costOf(x, d.p)
+		cd := e.candidate(k+1, x, []PartRef{e.partRef("diode", d.p)}, append([]Check(nil), c.checks...))
+		if d.schottky {
+			cd.Hazards = append(cd.Hazards, "Schottky: leakage rises steeply with temperature; see the reverse-bias check")
+		}
+		tr.Candidates = append(tr.Candidates, cd)
+	}
+	tr.Eliminated = eliminations(&counts)
+	if e.s.Load.VHoldup > 0 {
+		tr.Notes = append(tr.Notes, fmt.Sprintf("the diode blocks v_reverse + v_holdup = %s while the input is reversed", fmtV(e.vrSeries)))
+	}
+	e.finish(&tr)
+	return tr
+}
+
+// rankCosts computes costs when ranking by cost (only then is every
+// qualifying candidate priced), and sorts.
+func (e *engine) rankCosts(cs []cand, parts func(*cand) []*catalog.Part) {
+	if e.opt.Rank == RankCost {
+		for k := range cs {
+			e.costOf(&cs[k], parts(&cs[k])...)
+		}
+	}
+	e.sortCands(cs)
+}
+
+// runFET evaluates every MOSFET of the channel type as the stage's switch.
+func (e *engine) runFET(nfet bool) TopologyResult {
+	topo, fets, role := PFETHigh, e.cat.pfets, "mosfet"
+	if nfet {
+		topo, fets = NFETLow, e.cat.nfets
+	}
+	tr := TopologyResult{Topology: topo, Title: topo.Title(), Evaluated: map[string]int{role: len(fets)}}
+	var counts [numChecks]int
+	var c checker
+	var cs, out []cand
+	for i := range fets {
+		t := &fets[i]
+		c.reset(false, e.s.Ambient.TMax)
+		m, z := e.fet(t, nfet, &c)
+		x := cand{a: i, b: -1, z: z, m: m, margin: c.minMargin, marginID: c.minID, mpn: t.p.MPN}
+		if c.failed {
+			counts[c.first]++
+			if c.first == feBackfeed {
+				out = append(out, x)
+			}
+			continue
+		}
+		cs = append(cs, x)
+	}
+	parts := func(x *cand) []*catalog.Part {
+		ps := []*catalog.Part{fets[x.a].p}
+		if x.z != nil {
+			ps = append(ps, x.z.z.p)
+		}
+		return ps
+	}
+	e.rankCosts(cs, parts)
+	e.rankCosts(out, parts)
+	tr.Qualified = len(cs)
+	build := func(list []cand) []Candidate {
+		var res []Candidate
+		for k := range list[:min(len(list), e.opt.Top)] {
+			x := &list[k]
+			t := &fets[x.a]
+			c.reset(true, e.s.Ambient.TMax)
+			_, z := e.fet(t, nfet, &c)
+			e.costOf(x, parts(x)...)
+			refs := []PartRef{e.partRef("mosfet", t.p)}
+			var gr *GateResistor
+			if z != nil {
+				refs = append(refs, e.partRef("zener", z.z.p))
+				gr = &GateResistor{Value: Num(z.rg), Power: Num(z.prg), PowerSteady: Num(z.prgSteady),
+					Rating: GateResistorRating, Quiescent: Num(z.iq)}
+			}
+			cd := e.candidate(k+1, x, refs, append([]Check(nil), c.checks...))
+			cd.GateResistor = gr
+			if nfet {
+				cd.Hazards = append(cd.Hazards, fmt.Sprintf("load ground lifted by %s at i_max", fmtV(x.m.drop)))
+			}
+			if e.backfeed != "" {
+				cd.Unsafe = true
+				cd.Hazards = append(cd.Hazards, "back-feed: "+e.backfeed)
+			}
+			res = append(res, cd)
+		}
+		return res
+	}
+	tr.Candidates = build(cs)
+	if e.backfeed != "" {
+		tr.Unsafe = true
+		tr.UnsafeReason = e.backfeed + ": a single MOSFET's channel conducts both ways, so it cannot block current flowing back"
+		tr.RankedOut = build(out)
+	} else {
+		tr.Hazards = append(tr.Hazards, "blocks reverse polarity, not reverse current: if the input collapses while the gate is biased, the load side discharges back into the source")
+	}
+	if nfet {
+		tr.Hazards = append(tr.Hazards, "the load's ground is lifted by i_max·R_DS(on), and any other ground path (signal lines, chassis, shield) bypasses the protection")
+	}
+	tr.Eliminated = eliminations(&counts)
+	e.finish(&tr)
+	return tr
+}
