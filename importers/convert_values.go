@@ -136,7 +136,7 @@ func parseNumber(cell string, d units.Dim, pick units.Pick, unit string, signedO
 // AC", "125 Vac") and tells which was written.
 func cutACDC(s string) (rest string, ac, dc bool) {
 	t := s
-	lower := strings.ToLower(t)
+	lower := asciiLower(t) // same byte offsets as t
 	for _, m := range []struct {
 		w  string
 		ac bool
@@ -151,7 +151,7 @@ func cutACDC(s string) (rest string, ac, dc bool) {
 				repl = "V"
 			}
 			t = t[:i] + repl + t[i+len(m.w):]
-			lower = lower[:i] + strings.ToLower(repl) + lower[i+len(m.w):]
+			lower = lower[:i] + asciiLower(repl) + lower[i+len(m.w):]
 			if m.ac {
 				ac = true
 			} else {
@@ -250,4 +250,15 @@ func parseRerate(s string) (string, error) {
 		b.WriteString(strconv.FormatFloat(p.f, 'g', -1, 64))
 	}
 	return b.String(), nil
+}
+
+// asciiLower lower-cases ASCII letters only, keeping byte offsets.
+func asciiLower(s string) string {
+	b := []byte(s)
+	for i, c := range b {
+		if c >= 'A' && c <= 'Z' {
+			b[i] = c + 'a' - 'A'
+		}
+	}
+	return string(b)
 }

@@ -44,6 +44,9 @@ type Condition struct {
 // not recognised. It never fails; an unrecognisable header is simply
 // unknown.
 func RecognizeHeader(header string) Column {
+	if len(header) > maxHeaderLen {
+		return Column{Header: header} // prose, not a column header
+	}
 	col, cur := recognize(header, true)
 	if cur != "" && col.Field != fPrice && col.Field != fBreaks && col.Field != fQty {
 		// a currency code that is part of a name ("Ron" is also the
@@ -158,6 +161,10 @@ func recognize(header string, cutCur bool) (Column, string) {
 	resolveConds(&col)
 	return col, cur
 }
+
+// maxHeaderLen bounds the text taken for a column header; longer cells
+// are notes.
+const maxHeaderLen = 160
 
 // resolveConds names the field each condition fills for col.Field.
 func resolveConds(col *Column) {
@@ -484,13 +491,17 @@ func matchHeader(s string) (target, qual string, ok bool) {
 	return "", "", false
 }
 
+// maxSynonymWords is the most words a synonym has ("thermal resistance
+// junction to ambient").
+const maxSynonymWords = 8
+
 // coverMatch accepts a header whose words are all covered, left to right
 // and longest first, by synonyms of one target or by noise words.
 func coverMatch(toks []string) (string, bool) {
 	target := ""
 	for i := 0; i < len(toks); {
 		found := false
-		for j := len(toks); j > i; j-- {
+		for j := min(len(toks), i+maxSynonymWords); j > i; j-- {
 			if t, ok := headerIndex[strings.Join(toks[i:j], "")]; ok {
 				if target != "" && target != t {
 					return "", false
