@@ -62,7 +62,7 @@ import (
 type Mapping struct {
 	File      string
 	Sheet     string
-	HeaderRow int  // 1-based; meaningful when HasHeader is set
+	HeaderRow int  // 1-based; 0 = no header row; meaningful when HasRow is set
 	HasRow    bool // header_row given
 	Kind      catalog.Kind
 	Type      string
