@@ -496,10 +496,9 @@ func (rn *run) dataRow(cv *converter, sheet string, cells []string, row int) err
 	}
 	out, changes, err := rn.out.Put(p)
 	if err != nil {
-		// The store refuses an invalid part before writing anything and
-		// wraps database failures as "catalog PATH: ...": the first is a
-		// reject, the second ends the import.
-		if !strings.HasPrefix(err.Error(), "catalog ") {
+		// The store refuses an invalid part before writing anything: a
+		// reject. Any other failure ends the import.
+		if errors.Is(err, catalog.ErrInvalidPart) {
 			s.Rejects = append(s.Rejects, Reject{File: rn.name, Sheet: sheet, Row: row, Column: "", Raw: "",
 				Reason: "the catalog refused the part: " + err.Error()})
 			return nil

@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/csv"
 	"errors"
+	"fmt"
 	"io"
 	"math/rand"
 	"os"
@@ -540,4 +541,46 @@ func FuzzImportCSV(f *testing.F) {
 			}
 		}
 	})
+}
+
+// refusingSink refuses every part as the store refuses an invalid one.
+type refusingSink struct{ *checkSink }
+
+func (refusingSink) Put(*catalog.Part) (catalog.Outcome, []catalog.Change, error) {
+	return 0, nil, fmt.Errorf("part X: %w", catalog.ErrInvalidPart)
+}
+
+// failingSink fails as a broken database does.
+type failingSink struct{ *checkSink }
+
+func (failingSink) Put(*catalog.Part) (catalog.Outcome, []catalog.Change, error) {
+	return 0, nil, errors.New("catalog c.db: disk I/O error")
+}
+
+func TestStoreRefusals(t *testing.T) {
+	data, err := os.ReadFile("testdata/import/diodes_symbols.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(out sink) (*Summary, error) {
+		rn := &run{ctx: context.Background(), name: "d.csv", label: "d.csv", cr: &countingReaderAt{r: bytes.NewReader(data)},
+			sum: &Summary{Unknown: []string{}, Rejects: []Reject{}}, begin: func() (sink, error) { return out, nil }}
+		book, err := OpenBook("d.csv", bytes.NewReader(data), int64(len(data)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		tbl, err := book.Table("")
+		if err != nil {
+			t.Fatal(err)
+		}
+		_, err = rn.sheet("", tbl)
+		return rn.sum, err
+	}
+	s, err := run(refusingSink{&checkSink{}})
+	if err != nil || len(s.Rejects) != 4 || !strings.Contains(s.Rejects[0].Reason, "the catalog refused the part") {
+		t.Errorf("refused parts: %v %+v", err, s)
+	}
+	if _, err := run(failingSink{&checkSink{}}); err == nil || !strings.Contains(err.Error(), "d.csv, row 5") || !strings.Contains(err.Error(), "disk I/O") {
+		t.Errorf("database failure: %v", err)
+	}
 }
