@@ -118,7 +118,7 @@ func TestSheetStructure(t *testing.T) {
 		"Zener diodes,,,",
 		"Aldor,Z5V1,,5.1",
 		"Aldor,Z12,,12",
-		"TVS diodes,,,",
+		"TVS diodes,TVS diodes,TVS diodes,TVS diodes", // a merged title filled by the reader
 		"Aldor,T1,,",
 		"Mfr,MPN,VRRM (V),VZ (V)",
 		"Schottky rectifiers,,,",

@@ -552,20 +552,26 @@ var footerWords = []string{"total", "sum", "subtotal", "grand total", "prices su
 	"prices are", "prices in", "valid until", "generated", "printed", "copyright", "©", "(c)", "* ", "footnote"}
 
 // classify tells a data row from notes and footers: a row with one
-// non-empty cell is a note unless that cell is a part number in the part
+// non-empty cell (or one text repeated, a merged title) is a note unless that cell is a part number in the part
 // number column; a row starting with "Total", "Note", "Prices subject
 // to change"... is a footer; after a blank gap a row that does not look
 // like a part (a part number and one more recognised cell) is a footer;
 // the header row repeated is skipped.
 func classify(cells []string, lo *layout, header []string, afterGap bool) int {
-	n, firstIdx := 0, -1
+	n, firstIdx, same := 0, -1, true
 	for i, c := range cells {
-		if strings.TrimSpace(c) != "" {
+		if t := strings.TrimSpace(c); t != "" {
 			n++
 			if firstIdx < 0 {
 				firstIdx = i
+			} else if t != strings.TrimSpace(cells[firstIdx]) {
+				same = false
 			}
 		}
+	}
+	if n > 1 && same && !looksLikePartNumber(cells[firstIdx]) {
+		// a title merged across the row, its text copied into every cell
+		return rowNote
 	}
 	first := strings.ToLower(strings.TrimSpace(cells[firstIdx]))
 	mpnCols := lo.byField["mpn"]
