@@ -451,6 +451,7 @@ func columnLetter(i int) string {
 // recognizer returns the header recognizer of a mapping (nil m: the
 // synonym table alone).
 func (m *Mapping) recognizer() recognizer {
+	cache := map[string]Column{} // cells repeat down the rows scanned for the header
 	return func(h string, i int) Column {
 		if m != nil {
 			key := headerKey(h)
@@ -465,7 +466,14 @@ func (m *Mapping) recognizer() recognizer {
 				return c
 			}
 		}
-		return RecognizeHeader(h)
+		if c, ok := cache[h]; ok {
+			return c
+		}
+		c := RecognizeHeader(h)
+		if len(cache) < 10000 {
+			cache[h] = c
+		}
+		return c
 	}
 }
 
