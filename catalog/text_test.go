@@ -26,6 +26,8 @@ func TestTextSearch(t *testing.T) {
 		want []string // sorted
 	}{
 		{"fuzzy one edit", Query{Text: "shottky"}, []string{"SBX1100", "SBX340-13"}},
+		{"fuzzy two edits, long word", Query{Text: "shotky"}, []string{"SBX1100", "SBX340-13"}},
+		{"digits never fuzzy", Query{Text: "LF-3"}, nil},
 		{"word any case", Query{Text: "ZENER"}, []string{"QZ5V1"}},
 		{"mfr", Query{Text: "harrow"}, []string{"HPN3020", "HPN4012"}},
 		{"mfr fuzzy", Query{Text: "Quary"}, []string{"QR1M", "QZ5V1"}}, // 5 letters: one edit allowed

@@ -429,8 +429,11 @@ func splitTerms(text string) []string {
 // (conjunction); a term matches when any of these does:
 //
 //   - a match query on mfr, desc, package or class (analysed with the
-//     standard analyser; fuzziness 1, one edit, for terms of 5 or more
-//     characters, all tokens of the term required),
+//     standard analyser; fuzziness 1, one edit, for terms of 4 or 5
+//     characters, fuzziness 2 for 6 or more, so "shotky" finds
+//     "Schottky"; only for terms made of letters alone, since a fuzzy
+//     part number or package code matches the wrong parts; all tokens of
+//     the term required),
 //   - the exact part number or package key (lower(NormKey(term))),
 //   - a prefix of the part number or package key, for keys of 3 or more
 //     characters (shorter prefixes expand to too many terms).
@@ -440,13 +443,20 @@ func textQuery(text string) query.Query {
 	var conj []query.Query
 	for _, term := range splitTerms(text) {
 		var dis []query.Query
-		fuzzy := len([]rune(term)) >= 5
+		fuzziness := 0
+		switch n := len([]rune(term)); {
+		case !allLetters(term): // part numbers and package codes are never fuzzy
+		case n >= 6:
+			fuzziness = 2
+		case n >= 4:
+			fuzziness = 1
+		}
 		for _, f := range []string{"mfr", "desc", "package", "class"} {
 			mq := bleve.NewMatchQuery(term)
 			mq.SetField(f)
 			mq.SetOperator(query.MatchQueryOperatorAnd)
-			if fuzzy {
-				mq.SetFuzziness(1)
+			if fuzziness > 0 {
+				mq.SetFuzziness(fuzziness)
 			}
 			dis = append(dis, mq)
 		}
@@ -511,4 +521,14 @@ func (s *Store) textSearch(ctx context.Context, q query.Query, scored bool) (ids
 		ids = append(ids, id)
 	}
 	return ids, res.Total, true, nil
+}
+
+// allLetters reports whether s is made of letters only.
+func allLetters(s string) bool {
+	for _, r := range s {
+		if !unicode.IsLetter(r) {
+			return false
+		}
+	}
+	return s != ""
 }

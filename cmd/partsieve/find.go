@@ -83,9 +83,16 @@ func runFind(cmd *cobra.Command, a *app, o findOptions, text []string) error {
 		return err
 	}
 	defer st.Close()
-	parts, err := st.Find(ctx, q)
+	res, err := st.Search(ctx, q)
 	if err != nil {
 		return err
+	}
+	parts := res.Parts
+	if res.Capped {
+		fmt.Fprintf(a.stderr, "note: the text matched more than %d parts; only the most relevant were filtered further; add terms or --where conditions\n", catalog.TextCap)
+	}
+	if res.Fallback {
+		fmt.Fprintln(a.stderr, "note: the text index is busy or unusable; text was matched as plain substrings (no typo tolerance)")
 	}
 	cut := false
 	if o.limit > 0 && len(parts) > o.limit {

@@ -153,6 +153,7 @@ func (a *app) open(ctx context.Context) (*catalog.Store, error) {
 	if err != nil {
 		return nil, err
 	}
+	st.Notify = func(msg string) { fmt.Fprintln(a.stderr, "note:", msg) }
 	if !st.New {
 		return st, nil
 	}
