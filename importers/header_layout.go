@@ -51,6 +51,16 @@ func buildLayout(headers []string, rec recognizer) *layout {
 		}
 		lo.cols[i] = c
 	}
+	adjacentPass(headers, lo.cols)
+	if len(lo.unknown) > 0 {
+		var still []string
+		for i, h := range headers {
+			if lo.cols[i].Field == "" && strings.TrimSpace(h) != "" && !rec(h, i).mapped && rec(h, i).Field == "" {
+				still = append(still, cleanSpaces(h))
+			}
+		}
+		lo.unknown = still
+	}
 	lo.chooseQualified()
 	lo.splitSecondRatings()
 	lo.pairPrices()
@@ -424,6 +434,13 @@ func score(cells []string, rec recognizer) (n int, mpn bool) {
 		}
 		if col.Field == "mpn" {
 			mpn = true
+		}
+	}
+	if !mpn && seen["mfr"] {
+		for _, c := range cells {
+			if isCatalogueHeader(c) {
+				mpn = true
+			}
 		}
 	}
 	if len(seen) < 2 {
