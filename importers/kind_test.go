@@ -64,7 +64,9 @@ func TestWordsGuess(t *testing.T) {
 }
 
 func TestDecideKind(t *testing.T) {
-	txt := func(col, s string, exact bool) kindText { return kindText{column: col, text: s, exact: exact, typeCo: col == "Type"} }
+	txt := func(col, s string, exact bool) kindText {
+		return kindText{column: col, text: s, exact: exact, typeCo: col == "Type"}
+	}
 	for _, tc := range []struct {
 		name   string
 		facts  kindFacts
