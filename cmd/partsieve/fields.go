@@ -49,6 +49,9 @@ names are used by --where, --sort, mapping files and JSON output.`,
 				}
 				infos = append(infos, fi)
 			}
+			for _, e := range importers.ExtraFields {
+				infos = append(infos, fieldInfo{Name: e.Name, Kinds: []string{"import"}, Meaning: e.Doc, Headers: importers.HeaderWords(e.Name)})
+			}
 			switch a.format {
 			case "json":
 				return writeJSON(a.stdout, infos)
@@ -59,7 +62,7 @@ names are used by --where, --sort, mapping files and JSON output.`,
 				}
 				return writeCSV(a.stdout, []string{"field", "kinds", "unit", "meaning", "header_words"}, rows)
 			}
-			fmt.Fprintln(a.stdout, "Headers match ignoring case, spaces, underscores, dashes and subscript\nparentheses (V_RRM, Vrrm and VRRM are the same), with the unit in the header\nor the cells; a test condition in the header (\"RDS(on) max @ 10V\") fills the\ncondition field. Canonical names always work as headers.")
+			fmt.Fprintln(a.stdout, "Headers match ignoring case, spaces, underscores, dashes and subscript\nparentheses (V_RRM, Vrrm and VRRM are the same), with the unit in the header\nor the cells; a test condition in the header (\"RDS(on) max @ 10V\") fills the\ncondition field. Canonical names always work as headers. Fields of kind\n\"import\" are read from spreadsheets (offers, kind words, ratings resolved by\nthe row's kind) but are not catalog fields.")
 			fmt.Fprintln(a.stdout)
 			for _, fi := range infos {
 				unit := fi.Unit
