@@ -273,7 +273,9 @@ func (c *checker) addPass(id checkID, value, limit float64, extra bool) bool {
 // missing records a check that cannot be made because data are absent.
 func (c *checker) missing(id checkID, what string) bool {
 	c.addPass(id, math.NaN(), math.NaN(), false)
-	c.note(what + " not given")
+	if c.rec {
+		c.note(what + " not given")
+	}
 	return c.rec
 }
 

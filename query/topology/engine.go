@@ -43,6 +43,8 @@ type engine struct {
 	backfeed string
 	tj       physics.SolveOptions
 
+	fmBuf physics.ForwardModel
+
 	zcache map[zkey]*zchoice
 	costs  map[*catalog.Part]*partCost
 }
@@ -163,7 +165,10 @@ func (e *engine) seriesDiode(d *diodeRec, c *checker) (m metrics) {
 				fmtA(d.ifsm), fmtS(d.ifsmT), fmtS(s.Load.InrushTime), factorNote(pr.KIFSM), s.Load.InrushPulses))
 		}
 	}
-	fm, ok := e.forward(d)
+	// the model lives in the engine so that the scan does not allocate it
+	fm := &e.fmBuf
+	var ok bool
+	*fm, ok = e.forward(d)
 	if !ok || !has(d.rth) {
 		what := "forward voltage data (vf at vf_if)"
 		if ok {
@@ -173,7 +178,7 @@ func (e *engine) seriesDiode(d *diodeRec, c *checker) (m metrics) {
 		return
 	}
 	// hot corner: junction temperature and loss
-	hot := physics.DiodeTj(&fm, i, s.Ambient.TMax, d.rth, e.tj)
+	hot := physics.DiodeTj(fm, i, s.Ambient.TMax, d.rth, e.tj)
 	lim := pr.TjLimitDiode(d.tjmax)
 	c.ambient = s.Ambient.TMax
 	if !c.addPass(sdTjHot, tjValue(hot), lim, stable(hot)) {
@@ -187,7 +192,7 @@ func (e *engine) seriesDiode(d *diodeRec, c *checker) (m metrics) {
 	}
 	// cold corner with self-heating; drop and loss are the worse of both
 	// corners (V_F falls with temperature, so usually the cold one)
-	cold := physics.DiodeTj(&fm, i, s.Ambient.TMin, d.rth, e.tj)
+	cold := physics.DiodeTj(fm, i, s.Ambient.TMin, d.rth, e.tj)
 	vfc, vfh := fm.VF(i, cold.Tj), fm.VF(i, hot.Tj)
 	m.tj, m.loss = hot.Tj, math.Max(vfh*i, vfc*i)
 	m.drop, m.dropCold = vfh, false
@@ -476,24 +481,47 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 			continue
 		}
 		vzMin, vzMax, pzLim := ch.vzMin, ch.vzMax, ch.pzLimit
-		loss := ch.prgSteady + ch.pzSteady
-		cost := e.cost(z.p).unit
-		if math.IsNaN(cost) {
-			cost = math.Inf(1)
+		costOf := func(z *diodeRec) float64 {
+			c := e.cost(z.p).unit
+			if math.IsNaN(c) {
+				return math.Inf(1)
+			}
+			return c
 		}
-		key, tie := loss, cost
+		var key float64
 		switch e.opt.Rank {
 		case RankCost:
-			key, tie = cost, loss
+			key = costOf(z)
 		case RankMargin:
-			mg := math.Min(math.Min((k.hi-vzMax)/k.hi, (vzMin-k.lo)/k.lo),
+			key = -math.Min(math.Min((k.hi-vzMax)/k.hi, (vzMin-k.lo)/k.lo),
 				math.Min((pzLim-ch.pz)/pzLim, (GateResistorMaxPower-ch.prg)/GateResistorMaxPower))
-			key, tie = -mg, loss
+		default:
+			key = ch.prgSteady + ch.pzSteady
 		}
-		if key < bestKey || key == bestKey && (tie < bestTie || tie == bestTie && best.ok && z.p.MPN < best.z.p.MPN) {
-			c := ch
-			best, bestKey, bestTie = &c, key, tie
+		if key > bestKey {
+			continue
 		}
+		if key == bestKey {
+			// ties: the lower loss (or cost when ranking by cost), then the part number
+			tie := costOf(z)
+			if e.opt.Rank == RankCost {
+				tie = ch.prgSteady + ch.pzSteady
+			}
+			if math.IsInf(bestTie, 1) && best.ok {
+				bestTie = costOf(best.z)
+				if e.opt.Rank == RankCost {
+					bestTie = best.prgSteady + best.pzSteady
+				}
+			}
+			if tie > bestTie || tie == bestTie && z.p.MPN >= best.z.p.MPN {
+				continue
+			}
+			bestTie = tie
+		} else {
+			bestTie = math.Inf(1) // computed when a tie needs it
+		}
+		c := ch
+		best, bestKey = &c, key
 	}
 	e.zcache[k] = best
 	return best
@@ -681,7 +709,9 @@ func (e *engine) fet(t *fetRec, nfet bool, c *checker) (m metrics, zc *zchoice) 
 	}
 	if e.backfeed != "" {
 		c.addPass(feBackfeed, math.NaN(), math.NaN(), false)
-		c.note("unsafe: " + e.backfeed + "; an enhanced channel conducts both ways, so current flows back into the source or the other loads")
+		if c.rec {
+			c.note("unsafe: " + e.backfeed + "; an enhanced channel conducts both ways, so current flows back into the source or the other loads")
+		}
 	}
 	return m, zc
 }

@@ -188,7 +188,10 @@ func (e *engine) explainShuntDiode(d *diodeRec) RoleReport {
 			fr := &e.cat.fuses[f.idx]
 			c.reset(false, e.s.Ambient.TMin)
 			pm := e.pair(fr, f.m, d, dm, &fm, &c)
-			x := cand{a: f.idx, b: -1, m: pm, margin: c.minMargin, mpn: fr.p.MPN}
+			x := cand{a: f.idx, b: -1, pa: fr.p, m: pm, margin: c.minMargin}
+			if e.opt.Rank == RankCost {
+				e.costOf(&x)
+			}
 			if !c.failed && (bestF == nil || e.less(&x, &bestC)) {
 				bestF, bestC = &f, x
 			}
@@ -248,7 +251,10 @@ func (e *engine) explainFuse(f *fuseRec) RoleReport {
 			}
 			c.reset(false, e.s.Ambient.TMin)
 			pm := e.pair(f, fmet, d, dm, &fm, &c)
-			x := cand{a: i, b: -1, m: pm, margin: c.minMargin, mpn: d.p.MPN}
+			x := cand{a: i, b: -1, pa: d.p, m: pm, margin: c.minMargin}
+			if e.opt.Rank == RankCost {
+				e.costOf(&x)
+			}
 			if !c.failed && (best == nil || e.less(&x, &bestC)) {
 				best, bestC = d, x
 			}

@@ -5,22 +5,78 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"sync"
 
 	"partsieve/catalog"
 	"partsieve/query/spec"
 )
 
 // cand is a qualifying design during ranking: indices into the role
-// slices and the figures it is ranked by.
+// slices, the parts (for names and costs) and the figures it is ranked by.
 type cand struct {
 	a, b      int // part indices (diode, fuse, FET); b: shunt diode of a pair, else -1
+	pa, pb    *catalog.Part
 	z         *zchoice
 	m         metrics
 	margin    float64
 	marginID  checkID
 	cost      float64
 	costKnown bool
-	mpn       string
+}
+
+// topN keeps the n best candidates by engine.less in a heap whose root is
+// the worst kept one, and counts every candidate offered: the ranking
+// never sorts (or holds) the whole list of qualifying designs.
+type topN struct {
+	e     *engine
+	n     int
+	h     []cand
+	count int
+}
+
+func (t *topN) worse(i, j int) bool { return t.e.less(&t.h[j], &t.h[i]) }
+
+func (t *topN) push(x cand) {
+	t.count++
+	if t.e.opt.Rank == RankCost {
+		t.e.costOf(&x)
+	}
+	if len(t.h) < t.n {
+		t.h = append(t.h, x)
+		for i := len(t.h) - 1; i > 0; {
+			p := (i - 1) / 2
+			if !t.worse(i, p) {
+				break
+			}
+			t.h[i], t.h[p] = t.h[p], t.h[i]
+			i = p
+		}
+		return
+	}
+	if !t.e.less(&x, &t.h[0]) {
+		return
+	}
+	t.h[0] = x
+	for i := 0; ; {
+		l, r, w := 2*i+1, 2*i+2, i
+		if l < len(t.h) && t.worse(l, w) {
+			w = l
+		}
+		if r < len(t.h) && t.worse(r, w) {
+			w = r
+		}
+		if w == i {
+			break
+		}
+		t.h[i], t.h[w] = t.h[w], t.h[i]
+		i = w
+	}
+}
+
+// sorted returns the kept candidates, best first.
+func (t *topN) sorted() []cand {
+	sort.Slice(t.h, func(i, j int) bool { return t.e.less(&t.h[i], &t.h[j]) })
+	return t.h
 }
 
 // Evaluate picks candidates for spec s from the prepared catalog cat.
@@ -32,22 +88,35 @@ func Evaluate(s *spec.Spec, cat *Catalog, opt Options) *Result {
 		Quantity: s.Build.Quantity, Currency: s.Build.Currency,
 		Notes: append([]string(nil), s.Notes...), Cautions: Cautions,
 	}
+	// the topologies are independent: each runs on its own engine (the
+	// engine's caches are not shared), concurrently
+	var known []Topology
 	for _, t := range e.opt.Topologies {
-		var tr TopologyResult
 		switch t {
-		case SeriesDiode:
-			tr = e.runSeries()
-		case ShuntFuse:
-			tr = e.runShunt()
-		case PFETHigh:
-			tr = e.runFET(false)
-		case NFETLow:
-			tr = e.runFET(true)
-		default:
-			continue
+		case SeriesDiode, ShuntFuse, PFETHigh, NFETLow:
+			known = append(known, t)
 		}
-		r.Topologies = append(r.Topologies, tr)
 	}
+	r.Topologies = make([]TopologyResult, len(known))
+	var wg sync.WaitGroup
+	for k, t := range known {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			te := newEngine(s, cat, opt)
+			switch t {
+			case SeriesDiode:
+				r.Topologies[k] = te.runSeries()
+			case ShuntFuse:
+				r.Topologies[k] = te.runShunt()
+			case PFETHigh:
+				r.Topologies[k] = te.runFET(false)
+			case NFETLow:
+				r.Topologies[k] = te.runFET(true)
+			}
+		}()
+	}
+	wg.Wait()
 	for _, tr := range r.Topologies {
 		r.Comparison = append(r.Comparison, compareRow(&tr, s.Build.Currency))
 	}
@@ -106,17 +175,20 @@ func (e *engine) less(x, y *cand) bool {
 	if x.margin != y.margin {
 		return x.margin > y.margin
 	}
-	return x.mpn < y.mpn
+	if x.pa.MPN != y.pa.MPN {
+		return x.pa.MPN < y.pa.MPN
+	}
+	if x.pb != nil && y.pb != nil {
+		return x.pb.MPN < y.pb.MPN
+	}
+	return x.a < y.a
 }
 
-func (e *engine) sortCands(cs []cand) {
-	sort.Slice(cs, func(i, j int) bool { return e.less(&cs[i], &cs[j]) })
-}
-
-// costOf fills the candidate's cost from its parts.
-func (e *engine) costOf(x *cand, parts ...*catalog.Part) {
+// costOf fills the candidate's cost from its parts (the gate resistor is
+// not in the catalog and not costed).
+func (e *engine) costOf(x *cand) {
 	sum, known := 0.0, true
-	for _, p := range parts {
+	for _, p := range [2]*catalog.Part{x.pa, x.pb} {
 		if p == nil {
 			continue
 		}
@@ -214,7 +286,7 @@ func (e *engine) runSeries() TopologyResult {
 	tr := TopologyResult{Topology: SeriesDiode, Title: SeriesDiode.Title(), Evaluated: map[string]int{"diode": len(e.cat.diodes)}}
 	var counts [numChecks]int
 	var c checker
-	var cs []cand
+	top := topN{e: e, n: e.opt.Top}
 	for i := range e.cat.diodes {
 		d := &e.cat.diodes[i]
 		c.reset(false, e.s.Ambient.TMax)
@@ -223,16 +295,16 @@ func (e *engine) runSeries() TopologyResult {
 			counts[c.first]++
 			continue
 		}
-		cs = append(cs, cand{a: i, b: -1, m: m, margin: c.minMargin, marginID: c.minID, mpn: d.p.MPN})
+		top.push(cand{a: i, b: -1, pa: d.p, m: m, margin: c.minMargin, marginID: c.minID})
 	}
-	e.rankCosts(cs, func(x *cand) []*catalog.Part { return []*catalog.Part{e.cat.diodes[x.a].p} })
-	tr.Qualified = len(cs)
-	for k := range cs[:min(len(cs), e.opt.Top)] {
+	cs := top.sorted()
+	tr.Qualified = top.count
+	for k := range cs {
 		x := &cs[k]
 		d := &e.cat.diodes[x.a]
 		c.reset(true, e.s.Ambient.TMax)
 		e.seriesDiode(d, &c)
-		e.costOf(x, d.p)
+		e.costOf(x)
 		cd := e.candidate(k+1, x, []PartRef{e.partRef("diode", d.p)}, append([]Check(nil), c.checks...))
 		if d.schottky {
 			cd.Hazards = append(cd.Hazards, "Schottky: leakage rises steeply with temperature; see the reverse-bias check")
@@ -247,17 +319,6 @@ func (e *engine) runSeries() TopologyResult {
 	return tr
 }
 
-// rankCosts computes costs when ranking by cost (only then is every
-// qualifying candidate priced), and sorts.
-func (e *engine) rankCosts(cs []cand, parts func(*cand) []*catalog.Part) {
-	if e.opt.Rank == RankCost {
-		for k := range cs {
-			e.costOf(&cs[k], parts(&cs[k])...)
-		}
-	}
-	e.sortCands(cs)
-}
-
 // runFET evaluates every MOSFET of the channel type as the stage's switch.
 func (e *engine) runFET(nfet bool) TopologyResult {
 	topo, fets, role := PFETHigh, e.cat.pfets, "mosfet"
@@ -267,39 +328,33 @@ func (e *engine) runFET(nfet bool) TopologyResult {
 	tr := TopologyResult{Topology: topo, Title: topo.Title(), Evaluated: map[string]int{role: len(fets)}}
 	var counts [numChecks]int
 	var c checker
-	var cs, out []cand
+	top, out := topN{e: e, n: e.opt.Top}, topN{e: e, n: e.opt.Top}
 	for i := range fets {
 		t := &fets[i]
 		c.reset(false, e.s.Ambient.TMax)
 		m, z := e.fet(t, nfet, &c)
-		x := cand{a: i, b: -1, z: z, m: m, margin: c.minMargin, marginID: c.minID, mpn: t.p.MPN}
+		x := cand{a: i, b: -1, pa: t.p, z: z, m: m, margin: c.minMargin, marginID: c.minID}
+		if z != nil {
+			x.pb = z.z.p
+		}
 		if c.failed {
 			counts[c.first]++
 			if c.first == feBackfeed {
-				out = append(out, x)
+				out.push(x)
 			}
 			continue
 		}
-		cs = append(cs, x)
+		top.push(x)
 	}
-	parts := func(x *cand) []*catalog.Part {
-		ps := []*catalog.Part{fets[x.a].p}
-		if x.z != nil {
-			ps = append(ps, x.z.z.p)
-		}
-		return ps
-	}
-	e.rankCosts(cs, parts)
-	e.rankCosts(out, parts)
-	tr.Qualified = len(cs)
+	tr.Qualified = top.count
 	build := func(list []cand) []Candidate {
 		var res []Candidate
-		for k := range list[:min(len(list), e.opt.Top)] {
+		for k := range list {
 			x := &list[k]
 			t := &fets[x.a]
 			c.reset(true, e.s.Ambient.TMax)
 			_, z := e.fet(t, nfet, &c)
-			e.costOf(x, parts(x)...)
+			e.costOf(x)
 			refs := []PartRef{e.partRef("mosfet", t.p)}
 			var gr *GateResistor
 			if z != nil {
@@ -320,11 +375,11 @@ func (e *engine) runFET(nfet bool) TopologyResult {
 		}
 		return res
 	}
-	tr.Candidates = build(cs)
+	tr.Candidates = build(top.sorted())
 	if e.backfeed != "" {
 		tr.Unsafe = true
 		tr.UnsafeReason = e.backfeed + ": a single MOSFET's channel conducts both ways, so it cannot block current flowing back"
-		tr.RankedOut = build(out)
+		tr.RankedOut = build(out.sorted())
 	} else {
 		tr.Hazards = append(tr.Hazards, "blocks reverse polarity, not reverse current: if the input collapses while the gate is biased, the load side discharges back into the source")
 	}

@@ -1,19 +1,21 @@
 package topology
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
-	"partsieve/catalog"
 	"partsieve/query/physics"
 )
 
-// maxFallbackScan bounds the pair evaluations per fuse when none of the
-// pre-selected diodes pairs with it (a tool choice that keeps the pick
-// fast on large catalogs; the diodes scanned are those whose surge rating
-// covers the fuse).
-const maxFallbackScan = 4096
+// maxPairTries bounds the pair evaluations per fuse (a tool choice that
+// keeps the pick fast on large catalogs). The index already excludes the
+// diodes that cannot pass the clamp and surge checks with the fuse, so
+// the first diodes tried nearly always pair; the bound is reached only in
+// contrived catalogs.
+const maxPairTries = 256
 
 // shuntD is a shunt diode that passed its own checks.
 type shuntD struct {
@@ -23,6 +25,7 @@ type shuntD struct {
 	margin   float64
 	marginID checkID
 	key      float64
+	rstar    float64 // smallest R_ext at which the clamp check passes
 }
 
 // fuseS is a fuse that passed its own checks.
@@ -34,13 +37,23 @@ type fuseS struct {
 }
 
 // runShunt evaluates the shunt-fuse topology. Fuses and diodes are first
-// checked on their own; only survivors are paired. Diodes are sorted by
-// their derated I²t capability, so for each fuse a binary search finds
-// the diodes whose surge rating can cover the fuse's clearing I²t; among
-// those the best few by the ranking are tried first (a table of the best
-// diodes of every suffix, built once), and the rest are scanned only when
-// none of them pairs. The cost is O((F + D)·log D + F·K) pair
-// evaluations instead of F·D.
+// checked on their own; only survivors are paired, never as a cross
+// product:
+//
+//   - the clamp check passes exactly when the fuse's external resistance
+//     R_ext = r_source + R_cold is at least the diode's threshold
+//     R* = (v_reverse − v_reverse_max)/I*, with V_F(I*, t_min) =
+//     v_reverse_max (the fault current falls as R_ext rises); fuses are
+//     visited in rising R_ext and diodes become active as R* is reached;
+//   - the surge check needs I²t_cap ≥ max(I²t_clear, I_lo·√(I²t_clear·t_p))
+//     with I_lo = (v_reverse − v_reverse_max)/R_ext (the lowest fault
+//     current of a pair that passes the clamp; the second term is the
+//     I²√t conversion to the clearing time); diodes are sorted by I²t_cap,
+//     so a binary search gives the suffix of diodes strong enough;
+//   - a segment tree over that order returns the best active diodes of the
+//     suffix by the ranking; they are evaluated exactly, best first.
+//
+// The cost is O((F + D)·log D) plus a few exact pair evaluations per fuse.
 func (e *engine) runShunt() TopologyResult {
 	s := e.s
 	tr := TopologyResult{Topology: ShuntFuse, Title: ShuntFuse.Title(),
@@ -48,7 +61,7 @@ func (e *engine) runShunt() TopologyResult {
 	var counts [numChecks]int
 	var c checker
 
-	var fs []fuseS
+	fs := make([]fuseS, 0, len(e.cat.fuses))
 	for i := range e.cat.fuses {
 		c.reset(false, s.Ambient.TMax)
 		m := e.fuse(&e.cat.fuses[i], &c)
@@ -58,7 +71,9 @@ func (e *engine) runShunt() TopologyResult {
 		}
 		fs = append(fs, fuseS{idx: i, m: m, margin: c.minMargin, marginID: c.minID})
 	}
-	var ds []shuntD
+	vrev, vrm := s.Supply.VReverse, s.Load.VReverseMax
+	ds := make([]shuntD, 0, len(e.cat.diodes))
+	tpMin := math.Inf(1)
 	for i := range e.cat.diodes {
 		d := &e.cat.diodes[i]
 		c.reset(false, s.Ambient.TMax)
@@ -72,7 +87,7 @@ func (e *engine) runShunt() TopologyResult {
 			counts[shSurgeData]++
 			continue
 		}
-		x := shuntD{idx: i, fm: fm, m: m, margin: c.minMargin, marginID: c.minID}
+		x := shuntD{idx: i, fm: fm, m: m, margin: c.minMargin, marginID: c.minID, rstar: clampThreshold(&fm, vrev, vrm, s.Ambient.TMin)}
 		switch e.opt.Rank {
 		case RankMargin:
 			x.key = -x.margin
@@ -84,115 +99,143 @@ func (e *engine) runShunt() TopologyResult {
 		default:
 			x.key = m.extra
 		}
+		tpMin = math.Min(tpMin, d.ifsmT)
 		ds = append(ds, x)
 	}
-	sort.Slice(ds, func(i, j int) bool {
-		if ds[i].m.cap != ds[j].m.cap {
-			return ds[i].m.cap < ds[j].m.cap
+	// positions: diodes by rising capability (ds itself is not moved);
+	// sorting small (value, index) records keeps the sorts cheap
+	n := len(ds)
+	type rec struct {
+		v   float64
+		tie int
+		i   int32
+	}
+	byCap := make([]rec, n)
+	for i := range ds {
+		byCap[i] = rec{ds[i].m.cap, ds[i].idx, int32(i)}
+	}
+	slices.SortFunc(byCap, func(a, b rec) int {
+		if c := cmp.Compare(a.v, b.v); c != 0 {
+			return c
 		}
-		return ds[i].idx < ds[j].idx
+		return cmp.Compare(a.tie, b.tie)
+	})
+	perm := make([]int32, n)
+	caps := make([]float64, n)
+	keys, ties := make([]float64, n), make([]int, n)
+	byR := make([]rec, n) // positions by rising R*
+	for p, r := range byCap {
+		i := r.i
+		perm[p], caps[p], keys[p], ties[p] = i, ds[i].m.cap, ds[i].key, ds[i].idx
+		byR[p] = rec{ds[i].rstar, p, int32(p)}
+	}
+	slices.SortFunc(byR, func(a, b rec) int {
+		if c := cmp.Compare(a.v, b.v); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.tie, b.tie)
+	})
+	tree := newBestK(n, e.opt.PairsPerFuse, keys, ties)
+	// fuses by rising external resistance
+	byRext := make([]rec, len(fs))
+	for k := range fs {
+		rc := e.cat.fuses[fs[k].idx].rcold
+		if !has(rc) {
+			rc = 0
+		}
+		byRext[k] = rec{s.Supply.RSource + rc, fs[k].idx, int32(k)}
+	}
+	slices.SortFunc(byRext, func(a, b rec) int {
+		if c := cmp.Compare(a.v, b.v); c != 0 {
+			return c
+		}
+		return cmp.Compare(a.tie, b.tie)
 	})
 
-	// best K diodes (by key) of every suffix ds[s:]
-	n, K := len(ds), e.opt.PairsPerFuse+2
-	top := make([]int32, n*K)
-	for i := range top {
-		top[i] = -1
-	}
-	for i := n - 1; i >= 0; i-- {
-		row := top[i*K : (i+1)*K]
-		if i+1 < n {
-			copy(row, top[(i+1)*K:(i+2)*K])
-		}
-		// insert i by key
-		pos := K
-		for k := 0; k < K; k++ {
-			if row[k] < 0 || ds[i].key < ds[row[k]].key || ds[i].key == ds[row[k]].key && ds[i].idx < ds[row[k]].idx {
-				pos = k
-				break
-			}
-		}
-		if pos < K {
-			copy(row[pos+1:], row[pos:K-1])
-			row[pos] = int32(i)
-		}
-	}
-
-	var pairs []cand
-	paired := 0
+	pairs := topN{e: e, n: e.opt.Top}
 	var tmp []cand
-	for _, f := range fs {
+	var got, removed []int32
+	paired, active := 0, 0
+	for _, fo := range byRext {
+		f := &fs[fo.i]
 		fr := &e.cat.fuses[f.idx]
+		re := fo.v
+		for active < n && byR[active].v <= re {
+			tree.set(int(byR[active].i), true)
+			active++
+		}
 		need := fr.clearing().Value
 		if !has(need) {
 			counts[prI2t]++
 			continue
 		}
-		start := sort.Search(n, func(i int) bool { return ds[i].m.cap >= need })
+		ilo := math.Max(0, vrev-vrm) / re
+		thr := math.Max(need, ilo*math.Sqrt(need*tpMin))
+		start := sort.Search(n, func(i int) bool { return caps[i] >= thr })
 		if start == n {
 			counts[prI2t]++
 			continue
 		}
 		firstFail, failedAny := checkID(0), false
-		tmp = tmp[:0]
-		try := func(j int) {
-			dd := &ds[j]
-			c.reset(false, s.Ambient.TMin)
-			pm := e.pair(fr, f.m, &e.cat.diodes[dd.idx], dd.m, &dd.fm, &c)
-			if c.failed {
-				if !failedAny {
-					firstFail, failedAny = c.first, true
-				}
-				return
-			}
-			x := cand{a: f.idx, b: dd.idx, m: pm, margin: c.minMargin, marginID: c.minID, mpn: fr.p.MPN + "+" + e.cat.diodes[dd.idx].p.MPN}
-			if f.margin < x.margin {
-				x.margin, x.marginID = f.margin, f.marginID
-			}
-			if dd.margin < x.margin {
-				x.margin, x.marginID = dd.margin, dd.marginID
-			}
-			tmp = append(tmp, x)
-		}
-		for _, j := range top[start*K : (start+1)*K] {
-			if j < 0 || len(tmp) >= e.opt.PairsPerFuse {
+		tmp, removed = tmp[:0], removed[:0]
+		tries := 0
+		for len(tmp) < e.opt.PairsPerFuse && tries < maxPairTries {
+			got = tree.query(start, got[:0])
+			if len(got) == 0 {
 				break
 			}
-			try(int(j))
-		}
-		if len(tmp) == 0 && n-start > K {
-			tried := top[start*K : (start+1)*K]
-			scanned := 0
-			for j := start; j < n && scanned < maxFallbackScan; j++ {
-				if contains(tried, int32(j)) {
+			for _, j := range got {
+				if len(tmp) >= e.opt.PairsPerFuse || tries >= maxPairTries {
+					break
+				}
+				tries++
+				tree.set(int(j), false)
+				removed = append(removed, j)
+				dd := &ds[perm[j]]
+				c.reset(false, s.Ambient.TMin)
+				pm := e.pair(fr, f.m, &e.cat.diodes[dd.idx], dd.m, &dd.fm, &c)
+				if c.failed {
+					if !failedAny {
+						firstFail, failedAny = c.first, true
+					}
 					continue
 				}
-				scanned++
-				try(j)
-			}
-			if len(tmp) > 0 {
-				e.rankCosts(tmp, e.pairParts)
-				tmp = tmp[:min(len(tmp), e.opt.PairsPerFuse)]
+				x := cand{a: f.idx, b: dd.idx, pa: fr.p, pb: e.cat.diodes[dd.idx].p, m: pm, margin: c.minMargin, marginID: c.minID}
+				if f.margin < x.margin {
+					x.margin, x.marginID = f.margin, f.marginID
+				}
+				if dd.margin < x.margin {
+					x.margin, x.marginID = dd.margin, dd.marginID
+				}
+				tmp = append(tmp, x)
 			}
 		}
+		for _, j := range removed {
+			tree.set(int(j), true)
+		}
 		if len(tmp) == 0 {
+			if !failedAny {
+				firstFail = prClamp // strong enough diodes exist, none clamps low enough
+			}
 			counts[firstFail]++
 			continue
 		}
 		paired++
-		pairs = append(pairs, tmp...)
+		for _, x := range tmp {
+			pairs.push(x)
+		}
 	}
-	e.rankCosts(pairs, e.pairParts)
-	tr.Qualified = len(pairs)
-	for k := range pairs[:min(len(pairs), e.opt.Top)] {
-		x := &pairs[k]
+	tr.Qualified = pairs.count
+	ps := pairs.sorted()
+	for k := range ps {
+		x := &ps[k]
 		fr, d := &e.cat.fuses[x.a], &e.cat.diodes[x.b]
 		c.reset(true, s.Ambient.TMax)
 		fmet := e.fuse(fr, &c)
 		dmet := e.shuntDiode(d, &c)
 		fm, _ := e.forward(d)
 		e.pair(fr, fmet, d, dmet, &fm, &c)
-		e.costOf(x, fr.p, d.p)
+		e.costOf(x)
 		cd := e.candidate(k+1, x, []PartRef{e.partRef("fuse", fr.p), e.partRef("shunt-diode", d.p)}, append([]Check(nil), c.checks...))
 		cd.FaultCurrent, cd.ClampVoltage = Num(x.m.iFault), Num(x.m.vClamp)
 		if fr.clearing().Estimated {
@@ -215,15 +258,34 @@ func (e *engine) runShunt() TopologyResult {
 	return tr
 }
 
-func (e *engine) pairParts(x *cand) []*catalog.Part {
-	return []*catalog.Part{e.cat.fuses[x.a].p, e.cat.diodes[x.b].p}
-}
-
-func contains(s []int32, v int32) bool {
-	for _, x := range s {
-		if x == v {
-			return true
+// clampThreshold returns the smallest external resistance R* (Ω) at which
+// a diode of model fm clamps a reversed supply vrev (V) to at most vrm (V)
+// at junction temperature tj (°C): R* = (vrev − vrm)/I* with V_F(I*, tj)
+// = vrm, found by bisection (V_F rises with I). 0 when vrev ≤ vrm (any
+// resistance will do); +Inf when the diode drops more than vrm at any
+// current. The result is lowered by one part in 10⁶ so that the exact
+// pair check, not this index, decides at the boundary.
+func clampThreshold(fm *physics.ForwardModel, vrev, vrm, tj float64) float64 {
+	if vrev <= vrm {
+		return 0
+	}
+	if fm.VF(1e-9, tj) >= vrm {
+		return math.Inf(1)
+	}
+	lo, hi := 0.0, 1.0
+	for fm.VF(hi, tj) < vrm {
+		hi *= 2
+		if hi > 1e9 {
+			return 0
 		}
 	}
-	return false
+	for k := 0; k < 80 && hi-lo > 1e-12*hi; k++ {
+		mid := (lo + hi) / 2
+		if fm.VF(mid, tj) < vrm {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return (vrev - vrm) / hi * (1 - 1e-6)
 }
