@@ -1,10 +1,12 @@
 package topology
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
+	"path/filepath"
 	"testing"
 
 	"partsieve/catalog"
@@ -166,5 +168,51 @@ func TestGeneratedCatalogQualifies(t *testing.T) {
 		if tr.Qualified == 0 {
 			t.Errorf("%s: nothing qualifies (%s)", tr.Topology, tr.NoneReason)
 		}
+	}
+}
+
+// BenchmarkPickStore runs Pick through a SQLite catalog of 100,000
+// generated parts: the SQL pre-filters, loading the remaining parts with
+// offers, then the evaluation. Building the catalog takes a while, so it
+// runs only with PARTSIEVE_BENCH_STORE=1.
+func BenchmarkPickStore(b *testing.B) {
+	if os.Getenv("PARTSIEVE_BENCH_STORE") == "" {
+		b.Skip("set PARTSIEVE_BENCH_STORE=1 to build a 100,000-part SQLite catalog and run Pick on it")
+	}
+	ctx := context.Background()
+	st, err := catalog.Open(ctx, filepath.Join(b.TempDir(), "bench.db"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer st.Close()
+	tx, err := st.BeginImport(ctx, catalog.Source{Label: "bench", File: "generated"})
+	if err != nil {
+		b.Fatal(err)
+	}
+	parts := genParts(100_000, 1)
+	for i := range parts {
+		if _, _, err := tx.Put(&parts[i]); err != nil {
+			b.Fatal(err)
+		}
+	}
+	if err := tx.Commit(catalog.Source{Read: len(parts)}); err != nil {
+		b.Fatal(err)
+	}
+	for _, name := range exampleNames {
+		s := exampleSpec(b, name)
+		b.Run(name, func(b *testing.B) {
+			var q int
+			for b.Loop() {
+				r, err := Pick(ctx, st, s, Options{})
+				if err != nil {
+					b.Fatal(err)
+				}
+				q = 0
+				for _, t := range r.Topologies {
+					q += t.Qualified
+				}
+			}
+			b.ReportMetric(float64(q), "qualified")
+		})
 	}
 }

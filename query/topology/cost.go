@@ -24,8 +24,9 @@ type partCost struct {
 // supplier and a note. Rules:
 //
 //   - the price break that applies is the one with the largest quantity
-//     not above qty; when qty is below every break, the first break is
-//     used and the note says the minimum order is above the quantity;
+//     not above qty; an offer whose first break is above qty is used only
+//     when no offer applies at qty, at its first break, and the note says
+//     the minimum order is above the quantity;
 //   - an offer in cur is taken as is; one in another currency is converted
 //     with rates[currency] (units of cur per unit of the offer currency);
 //     one without a rate (or without a currency) is not costed.
@@ -39,6 +40,7 @@ func UnitPrice(p *catalog.Part, qty int64, cur string, rates map[string]float64)
 func computeCost(p *catalog.Part, qty int64, cur string, rates map[string]float64) *partCost {
 	pc := &partCost{unit: math.NaN()}
 	var uncosted []string
+	fallback := partCost{unit: math.NaN()} // best offer whose first break is above qty
 	for i := range p.Offers {
 		o := &p.Offers[i]
 		if o.Stock != nil {
@@ -62,10 +64,19 @@ func computeCost(p *catalog.Part, qty int64, cur string, rates map[string]float6
 			rate = r
 		}
 		u := px * rate
-		if math.IsNaN(pc.unit) || u < pc.unit {
-			pc.unit, pc.supplier, pc.offerCur, pc.offerPx, pc.stock = u, o.Supplier, oc, px, o.Stock
-			pc.note = moqNote
+		dst := pc
+		if moqNote != "" {
+			dst = &fallback
 		}
+		if math.IsNaN(dst.unit) || u < dst.unit {
+			dst.unit, dst.supplier, dst.offerCur, dst.offerPx, dst.stock = u, o.Supplier, oc, px, o.Stock
+			dst.note = moqNote
+		}
+	}
+	if math.IsNaN(pc.unit) && !math.IsNaN(fallback.unit) {
+		total := pc.total
+		*pc = fallback
+		pc.total = total
 	}
 	if len(uncosted) > 0 {
 		msg := fmt.Sprintf("offer(s) from %s in a currency without a rate are not costed", strings.Join(uncosted, ", "))

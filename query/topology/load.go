@@ -3,6 +3,7 @@ package topology
 import (
 	"context"
 	"fmt"
+	"math"
 	"strings"
 
 	"partsieve/catalog"
@@ -34,33 +35,45 @@ type prefilter struct {
 
 // prefilters returns the catalog queries for the spec. Each condition
 // is implied by a check that every part must pass (with factors ≤ 1 and
-// a fuse rerating factor ≤ 2), so no part the checks would accept is
-// left out.
+// a fuse rerating factor ≤ 2; a fuse's cold resistance is bounded by the
+// output-voltage, drop and loss checks), so no part the checks would
+// accept is left out; a part without the value (NULL) fails the same
+// check for want of data.
 func prefilters(s *spec.Spec) []prefilter {
 	e := newEngine(s, &Catalog{}, Options{})
 	pr := e.pr
+	// a little slack so that rounding never excludes a part the checks
+	// would accept at the boundary
+	lo := func(x float64) float64 { return x * (1 - 1e-9) }
+	hi := func(x float64) float64 { return x * (1 + 1e-9) }
+	i := s.Load.IMax
+	rcMax := e.dropLim / i
+	if s.Budget.HasLoss {
+		rcMax = math.Min(rcMax, s.Budget.LossMax/(i*i))
+	}
 	notRect := []catalog.Cond{{Field: "type", Op: "!=", Text: "zener"}, {Field: "type", Op: "!=", Text: "tvs"}}
 	return []prefilter{
 		{topos: []Topology{SeriesDiode}, kind: catalog.Diode, types: []string{"rectifier", "schottky"}, role: "diode",
 			label: "reverse voltage or average forward current (catalog pre-filter)",
 			conds: append(append([]catalog.Cond(nil), notRect...),
-				catalog.Cond{Field: "vrrm", Op: ">=", Num: e.vrSeries / pr.KVRRM.Value},
-				catalog.Cond{Field: "ifav", Op: ">=", Num: s.Load.IMax / pr.KIFAV.Value})},
+				catalog.Cond{Field: "vrrm", Op: ">=", Num: lo(e.vrSeries / pr.KVRRM.Value)},
+				catalog.Cond{Field: "ifav", Op: ">=", Num: lo(i / pr.KIFAV.Value)})},
 		{topos: []Topology{ShuntFuse}, kind: catalog.Diode, types: []string{"rectifier", "schottky"}, role: "shunt-diode",
 			label: "reverse voltage in operation (catalog pre-filter)",
 			conds: append(append([]catalog.Cond(nil), notRect...),
-				catalog.Cond{Field: "vrrm", Op: ">=", Num: e.vShunt / pr.KVRRM.Value})},
+				catalog.Cond{Field: "vrrm", Op: ">=", Num: lo(e.vShunt / pr.KVRRM.Value)})},
 		{topos: []Topology{ShuntFuse}, kind: catalog.Fuse, role: "fuse",
-			label: "DC voltage rating or continuous current (catalog pre-filter)",
-			conds: []catalog.Cond{{Field: "un_dc", Op: ">=", Num: e.vFuse}, {Field: "in", Op: ">=", Num: s.Load.IMax / 2}}},
+			label: "DC voltage rating, continuous current or cold resistance (catalog pre-filter)",
+			conds: []catalog.Cond{{Field: "un_dc", Op: ">=", Num: lo(e.vFuse)}, {Field: "in", Op: ">=", Num: lo(i / 2)},
+				{Field: "rcold", Op: "<=", Num: hi(rcMax)}}},
 		{topos: []Topology{PFETHigh}, kind: catalog.MOSFET, types: []string{"p"}, role: "mosfet",
 			label: "drain-source voltage or drain current (catalog pre-filter)",
 			conds: []catalog.Cond{{Field: "type", Op: "=", Text: "p"},
-				{Field: "vds", Op: ">=", Num: e.vDS / pr.KVDS.Value}, {Field: "id", Op: ">=", Num: s.Load.IMax / pr.KID.Value}}},
+				{Field: "vds", Op: ">=", Num: lo(e.vDS / pr.KVDS.Value)}, {Field: "id", Op: ">=", Num: lo(i / pr.KID.Value)}}},
 		{topos: []Topology{NFETLow}, kind: catalog.MOSFET, types: []string{"n"}, role: "mosfet",
 			label: "drain-source voltage or drain current (catalog pre-filter)",
 			conds: []catalog.Cond{{Field: "type", Op: "=", Text: "n"},
-				{Field: "vds", Op: ">=", Num: e.vDS / pr.KVDS.Value}, {Field: "id", Op: ">=", Num: s.Load.IMax / pr.KID.Value}}},
+				{Field: "vds", Op: ">=", Num: lo(e.vDS / pr.KVDS.Value)}, {Field: "id", Op: ">=", Num: lo(i / pr.KID.Value)}}},
 		{topos: []Topology{PFETHigh, NFETLow}, kind: catalog.Diode, role: "zener",
 			conds: []catalog.Cond{{Field: "type", Op: "=", Text: "zener"}}},
 	}
