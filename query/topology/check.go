@@ -43,6 +43,9 @@ func (n *Num) UnmarshalJSON(b []byte) error {
 //	value ≥ limit:  (value − limit)/|limit|
 //	temperatures:   (T_limit − T_j)/(T_limit − T_ambient), the share of the
 //	                thermal headroom above ambient left unused
+//	runaway:        (T_a,max − t_max)/max(t_max − t_min, 10 K), how far the
+//	                ambient may rise past t_max before thermal runaway,
+//	                relative to the specified ambient span
 //
 // A check whose data are missing has a null value and margin and fails.
 type Check struct {
@@ -87,6 +90,7 @@ const (
 	sdLoss
 	sdVout
 	sdDrop
+	sdRunaway
 	sdReverse
 
 	fuVoltage
@@ -101,6 +105,7 @@ const (
 	shVRRM
 	shSurgeData
 	shRunaway
+	shLeakTj
 
 	prI2t
 	prOpens
@@ -153,8 +158,10 @@ var defs = [numChecks]checkDef{
 	sdLoss:  {"loss budget", "stage", "cold", "W", true, false, "V_F(i_max, T_j)·i_max ≤ loss_max (worst of cold and hot corner)", srcBudget},
 	sdVout:  {"output voltage", "stage", "cold", "V", false, false, "v_min − V_F(i_max, T_j) ≥ load.v_min (worst of cold and hot corner)", srcHead},
 	sdDrop:  {"drop budget", "stage", "cold", "V", true, false, "V_F(i_max, T_j) ≤ drop_max (worst of cold and hot corner)", srcBudget},
+	sdRunaway: {"no thermal runaway while reversed", "diode", "reverse", "°C", true, false,
+		"t_max ≤ T_a,max = T_j,crit − R_thJA·P_R,crit at V_R = v_reverse + v_holdup (P_R,crit = 1/(a·R_thJA))", srcRunaw},
 	sdReverse: {"reverse bias at t_max", "diode", "reverse", "°C", true, true,
-		"T_j = t_max + R_thJA·V_R·I_R(T_j, V_R) ≤ T_jmax, stable (a·R_thJA·P_R < 1)", srcRunaw},
+		"T_j = t_max + R_thJA·V_R·I_R(T_j, V_R) ≤ T_jmax", srcRunaw},
 
 	fuVoltage:    {"DC voltage rating", "fuse", "rating", "V", false, false, "U_N,DC ≥ max(v_max, v_transient, v_reverse)", srcFuseV},
 	fuCurrent:    {"continuous current", "fuse", "hot", "A", true, false, "i_max ≤ k_std·K_T(t_max)·I_n", srcFuseI},
@@ -167,8 +174,10 @@ var defs = [numChecks]checkDef{
 
 	shVRRM:      {"reverse voltage in operation", "shunt-diode", "transient", "V", true, false, "max(v_max, v_transient) ≤ k_vrrm·V_RRM", srcK},
 	shSurgeData: {"surge and forward data given", "shunt-diode", "rating", "", false, false, "I_FSM and V_F given (to coordinate with the fuse and find the fault point)", srcCoord},
-	shRunaway: {"leakage and runaway in operation", "shunt-diode", "normal", "°C", true, true,
-		"T_j = t_max + R_thJA·v_max·I_R(T_j, v_max) ≤ min(tj_limit, T_jmax − tj_margin_diode), stable", srcRunaw},
+	shRunaway: {"no thermal runaway in operation", "shunt-diode", "normal", "°C", true, false,
+		"t_max ≤ T_a,max at V_R = v_max (P_R,crit = 1/(a·R_thJA))", srcRunaw},
+	shLeakTj: {"junction temperature in operation", "shunt-diode", "normal", "°C", true, true,
+		"T_j = t_max + R_thJA·v_max·I_R(T_j, v_max) ≤ min(tj_limit, T_jmax − tj_margin_diode)", srcRunaw},
 
 	prI2t:   {"diode I²t vs fuse clearing I²t", "pair", "fault", "A²s", true, false, "I²t_clear(fuse) ≤ (k_ifsm·I_FSM)²·t_p/2, at the clearing time", srcCoord},
 	prOpens: {"fuse opens", "pair", "fault", "A", false, false, "I_f = (v_reverse − V_F(I_f))/(r_source + R_cold) ≥ k_fuse_open·I_n", srcOpen},
@@ -198,6 +207,7 @@ var defs = [numChecks]checkDef{
 type checker struct {
 	rec     bool
 	ambient float64
+	span    float64 // t_max − t_min, for runaway margins
 	checks  []Check
 
 	failed    bool
@@ -213,13 +223,18 @@ func (c *checker) reset(rec bool, ambient float64) {
 	c.minMargin, c.minID = math.Inf(1), 0
 }
 
-// margin returns the relative margin of value against limit for def d.
-func (c *checker) margin(d *checkDef, value, limit float64) float64 {
+// margin returns the relative margin of value against limit for check id.
+func (c *checker) margin(id checkID, value, limit float64) float64 {
+	d := &defs[id]
 	if math.IsNaN(value) || math.IsNaN(limit) {
 		return math.NaN()
 	}
 	if math.IsInf(value, 0) {
 		return math.Inf(-1)
+	}
+	if id == sdRunaway || id == shRunaway { // runaway: relative to the ambient span
+		span := math.Max(c.span, 10)
+		return (limit - value) / span
 	}
 	if d.thermal {
 		head := limit - c.ambient
@@ -248,7 +263,7 @@ func (c *checker) add(id checkID, value, limit float64) bool {
 // pass (a stable operating point, data present).
 func (c *checker) addPass(id checkID, value, limit float64, extra bool) bool {
 	d := &defs[id]
-	m := c.margin(d, value, limit)
+	m := c.margin(id, value, limit)
 	pass := extra && !math.IsNaN(m) && m >= 0
 	if !pass && !c.failed {
 		c.failed, c.first = true, id

@@ -218,6 +218,20 @@ func (e *engine) seriesDiode(d *diodeRec, c *checker) (m metrics) {
 		return
 	}
 	rev := physics.ReverseBiasTj(l, e.vrSeries, s.Ambient.TMax, d.rth, 0, e.tj)
+	rl := l.Runaway(e.vrSeries, d.rth, 0)
+	c.span = s.Ambient.TMax - s.Ambient.TMin
+	if !c.addPass(sdRunaway, s.Ambient.TMax, rl.TaMax, stable(rev)) {
+		return
+	}
+	if c.rec {
+		c.note(fmt.Sprintf("I_R = %s at %s and %s (slope %s, doubling every %.1f K); P_R,crit = %s, T_j,crit = %s",
+			fmtA(l.IR(s.Ambient.TMax, e.vrSeries)), fmtV(e.vrSeries), fmtT(s.Ambient.TMax), l.ASource, physics.DoublingInterval(l.A),
+			fmtW(rl.PCrit), fmtT(rl.TjCrit)))
+		if !s.Supply.SteadyReverse() {
+			c.note(fmt.Sprintf("the reversal lasts %s, less than %g s: judged on the steady state (conservative; the catalog has no thermal time constant)",
+				fmtS(s.Supply.ReverseTime), spec.SteadyReverseTime))
+		}
+	}
 	tjAbs := d.tjmax
 	if !has(tjAbs) {
 		tjAbs = pr.TjLimit.Value
@@ -226,15 +240,7 @@ func (e *engine) seriesDiode(d *diodeRec, c *checker) (m metrics) {
 		return
 	}
 	if c.rec {
-		lim := l.Runaway(e.vrSeries, d.rth, 0)
-		c.note(fmt.Sprintf("I_R = %s at %s and %s (slope from %s, doubling every %.1f K); P_R = %s; runaway above t_a = %s",
-			fmtA(l.IR(s.Ambient.TMax, e.vrSeries)), fmtV(e.vrSeries), fmtT(s.Ambient.TMax), l.ASource, physics.DoublingInterval(l.A),
-			fmtW(rev.P), fmtT(lim.TaMax)))
-		if !s.Supply.SteadyReverse() {
-			c.note(fmt.Sprintf("the reversal lasts %s, less than %g s: judged on the steady state (conservative; the catalog has no thermal time constant)",
-				fmtS(s.Supply.ReverseTime), spec.SteadyReverseTime))
-		}
-		c.note("a fault condition: judged against T_jmax itself, not the derated limit")
+		c.note(fmt.Sprintf("P_R = %s, loop gain %.3f; a fault condition: judged against T_jmax itself, not the derated limit", fmtW(rev.P), rev.LoopGain))
 	}
 	return m
 }
@@ -380,14 +386,21 @@ func (e *engine) shuntDiode(d *diodeRec, c *checker) (m metrics) {
 	}
 	c.ambient = s.Ambient.TMax
 	rev := physics.ReverseBiasTj(l, s.Supply.VMax, s.Ambient.TMax, d.rth, 0, e.tj)
-	lim := pr.TjLimitDiode(d.tjmax)
-	if !c.addPass(shRunaway, tjValue(rev), lim, stable(rev)) {
+	rl := l.Runaway(s.Supply.VMax, d.rth, 0)
+	c.span = s.Ambient.TMax - s.Ambient.TMin
+	if !c.addPass(shRunaway, s.Ambient.TMax, rl.TaMax, stable(rev)) {
 		return
 	}
 	if c.rec {
-		rl := l.Runaway(s.Supply.VMax, d.rth, 0)
-		c.note(fmt.Sprintf("I_R = %s at %s, P_R = %s, loop gain %.3f; runaway above t_a = %s; v_transient is short and not used here",
-			fmtA(l.IR(rev.Tj, s.Supply.VMax)), fmtV(s.Supply.VMax), fmtW(rev.P), rev.LoopGain, fmtT(rl.TaMax)))
+		c.note(fmt.Sprintf("I_R = %s at %s (slope %s); P_R,crit = %s, T_j,crit = %s; v_transient is short and not used here",
+			fmtA(l.IR(s.Ambient.TMax, s.Supply.VMax)), fmtV(s.Supply.VMax), l.ASource, fmtW(rl.PCrit), fmtT(rl.TjCrit)))
+	}
+	lim := pr.TjLimitDiode(d.tjmax)
+	if !c.addPass(shLeakTj, tjValue(rev), lim, stable(rev)) {
+		return
+	}
+	if c.rec {
+		c.note(fmt.Sprintf("P_R = %s, loop gain %.3f", fmtW(rev.P), rev.LoopGain))
 	}
 	m.extra, m.tj = rev.P, rev.Tj
 	return m

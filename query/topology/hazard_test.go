@@ -97,25 +97,34 @@ func TestSchottkyRunaway(t *testing.T) {
 	if !rb.Pass || !near(float64(rb.Value), 60.42, 0.02) {
 		t.Errorf("reverse bias check %+v, want T_j 60.42 °C", rb)
 	}
-	if !strings.Contains(rb.Note, "runaway above t_a = 92.2 °C") {
-		t.Errorf("note %q should give T_a,max 92.2 °C", rb.Note)
+	ra := findCheck(t, tr.Candidates[0].Checks, "diode", "no thermal runaway while reversed")
+	// source: REFERENCE §8 check 10: T_a,max = 92.2 °C, T_j,crit = 105.3 °C; tolerance 0.05 K
+	if !ra.Pass || float64(ra.Value) != 60 || !near(float64(ra.Limit), 92.2, 0.05) || !strings.Contains(ra.Note, "T_j,crit = 105 °C") {
+		t.Errorf("runaway check %+v, want 60 °C ≤ 92.2 °C", ra)
+	}
+	// margin: (92.2 − 60)/(60 − 0) of the ambient span
+	if !near(float64(ra.Margin), (92.2-60)/60, 0.002) {
+		t.Errorf("runaway margin %v", ra.Margin)
 	}
 	hot := mustSpec(t, edit(t, runawaySpec, "t_max = 60", "t_max = 100"))
 	r = Evaluate(hot, cat, opt)
 	tr = topo(t, r, SeriesDiode)
-	if len(tr.Candidates) != 0 || elim(tr, "diode", "reverse bias at t_max") != 1 {
+	if len(tr.Candidates) != 0 || elim(tr, "diode", "no thermal runaway while reversed") != 1 {
 		t.Fatalf("at 100 °C: candidates %d, eliminated %v", len(tr.Candidates), tr.Eliminated)
 	}
-	if !strings.Contains(tr.NoneReason, "reverse bias at t_max") {
+	if !strings.Contains(tr.NoneReason, "no thermal runaway while reversed") {
 		t.Errorf("none reason %q", tr.NoneReason)
 	}
 	ex, err := ExplainCatalog(hot, cat, "E5-SK", opt)
 	if err != nil {
 		t.Fatal(err)
 	}
-	rb = findCheck(t, ex.Parts[0].Roles[0].Checks, "diode", "reverse bias at t_max")
-	if rb.Pass || !strings.Contains(rb.Note, "runaway above t_a = 92.2 °C") {
-		t.Errorf("runaway check %+v", rb)
+	ra = findCheck(t, ex.Parts[0].Roles[0].Checks, "diode", "no thermal runaway while reversed")
+	if ra.Pass || float64(ra.Value) != 100 || !near(float64(ra.Limit), 92.2, 0.05) || float64(ra.Margin) >= 0 {
+		t.Errorf("runaway check %+v", ra)
+	}
+	if ex.Parts[0].Roles[0].FirstFail != "diode: no thermal runaway while reversed" {
+		t.Errorf("first fail %q", ex.Parts[0].Roles[0].FirstFail)
 	}
 }
 

@@ -153,7 +153,7 @@ func TestResultHelpers(t *testing.T) {
 		t.Errorf("nothing qualifies at 100 °C")
 	}
 	e, tp, ok := r.TopEliminator()
-	if !ok || tp != SeriesDiode || e.Check != "reverse bias at t_max" || e.Count != 1 {
+	if !ok || tp != SeriesDiode || e.Check != "no thermal runaway while reversed" || e.Count != 1 {
 		t.Errorf("TopEliminator = %+v %s %v", e, tp, ok)
 	}
 	for _, tr := range r.Topologies {
