@@ -3,6 +3,8 @@ package spec
 import (
 	"errors"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -21,6 +23,12 @@ func FuzzParseSpec(f *testing.F) {
 	f.Add("a.b.c = [1,\n[2,\n3]]\n[[x]]\n")
 	f.Add("[policy.profiles]\nx = 3\n")
 	f.Add("")
+	files, _ := filepath.Glob("../../seeddata/specs/*.toml")
+	for _, name := range files {
+		if data, err := os.ReadFile(name); err == nil {
+			f.Add(string(data))
+		}
+	}
 	f.Fuzz(func(t *testing.T, src string) {
 		s, err := Parse("f.toml", []byte(src))
 		if err != nil {
