@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -178,5 +177,3 @@ func (a *app) open(ctx context.Context) (*catalog.Store, error) {
 	}
 	return st, nil
 }
-
-var errNoMatch = errors.New("no match")
