@@ -221,11 +221,12 @@ func bestOffer(p *catalog.Part) (price string, stock string) {
 }
 
 // money writes a unit price with at least two decimals and no trailing
-// noise: 0.39 gives "0.39", 0.3375 gives "0.3375", 12 gives "12.00".
+// noise: 0.39 gives "0.39", 0.3375 gives "0.3375", 0.680824 gives
+// "0.6808", 12 gives "12.00".
 func money(v float64) string {
 	s := strconv.FormatFloat(v, 'f', -1, 64)
-	if len(s) > 8 {
-		s = strconv.FormatFloat(v, 'f', 4, 64)
+	if dot := strings.IndexByte(s, '.'); dot >= 0 && len(s)-dot-1 > 4 {
+		s = strings.TrimRight(strconv.FormatFloat(v, 'f', 4, 64), "0")
 	}
 	dot := strings.IndexByte(s, '.')
 	switch {

@@ -66,6 +66,8 @@ The catalog lives at --db, else $PARTSIEVE_DB, else ` + defaultDBHelp() + `.
 		newFindCmd(a),
 		newShowCmd(a),
 		newFieldsCmd(a),
+		newNeedCmd(a),
+		newPickCmd(a),
 		newCatalogCmd(a),
 	)
 	return root
