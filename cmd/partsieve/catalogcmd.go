@@ -186,7 +186,11 @@ func newCatalogCheckCmd(a *app) *cobra.Command {
 			for _, p := range problems {
 				fmt.Fprintln(a.stdout, "problem:", p)
 			}
-			return withHint(fmt.Errorf("%d problems found in %s", len(problems), st.Path), "a stale text index is fixed by 'partsieve catalog reindex'")
+			noun := "problems"
+			if len(problems) == 1 {
+				noun = "problem"
+			}
+			return withHint(fmt.Errorf("%d %s found in %s", len(problems), noun, st.Path), "a stale text index is fixed by 'partsieve catalog reindex'")
 		},
 	}
 }
