@@ -18,47 +18,6 @@ import (
 //     part number that, while distributors use the same words for their
 //     own order code (so with a part-number column present it stays sku).
 
-// condFieldFor gives the condition field of value field f for a condition
-// of dimension d ("" when there is none).
-func condFieldFor(f string, d units.Dim) string {
-	switch f {
-	case "vf":
-		switch d {
-		case units.Current:
-			return "vf_if"
-		case units.Temperature:
-			return "vf_tj"
-		}
-	case "vf2":
-		switch d {
-		case units.Current:
-			return "vf2_if"
-		case units.Temperature:
-			return "vf2_tj"
-		}
-	case "ir":
-		switch d {
-		case units.Voltage:
-			return "ir_vr"
-		case units.Temperature:
-			return "ir_tj"
-		}
-	case "ir2":
-		if d == units.Temperature {
-			return "ir2_tj"
-		}
-	case "rdson":
-		if d == units.Voltage {
-			return "rdson_vgs"
-		}
-	case "rdson2":
-		if d == units.Voltage {
-			return "rdson2_vgs"
-		}
-	}
-	return ""
-}
-
 // conditionColumn reads an unrecognised header as the test condition of
 // the column before it: "@ IF (A)", "at VR [V]", "@ Tj (°C)", "test
 // current (A)". prev is the preceding recognised column.
@@ -91,7 +50,7 @@ func conditionColumn(h string, prev Column) (Column, bool) {
 	default:
 		return Column{}, false
 	}
-	f := condFieldFor(prev.Field, d)
+	f := condTarget(prev.Field, d)
 	if f == "" {
 		return Column{}, false
 	}

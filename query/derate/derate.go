@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"partsieve/internal/suggest"
 	"sort"
 	"strings"
 
@@ -255,7 +256,7 @@ func (p Profile) WithOverrides(ov map[string]float64) (Profile, error) {
 		for _, tn := range targets {
 			f := q.field(tn)
 			if f == nil {
-				errs = append(errs, &OverrideError{Name: raw, Value: v, Reason: "unknown factor", Suggest: suggest(name)})
+				errs = append(errs, &OverrideError{Name: raw, Value: v, Reason: "unknown factor", Suggest: didYouMean(name)})
 				break
 			}
 			if why := f.check(v); why != "" {
@@ -283,11 +284,11 @@ func (p *Profile) field(name string) *Factor {
 	return nil
 }
 
-// suggest returns the known factor or alias name closest to name, or "".
-func suggest(name string) string {
+// didYouMean returns the known factor or alias name closest to name, or "".
+func didYouMean(name string) string {
 	best, bestD := "", 4
 	for _, n := range FactorNames() {
-		d := levenshtein(name, n)
+		d := suggest.Distance(name, n)
 		if strings.HasPrefix(n, name) && len(name) >= 3 {
 			d = 1
 		}
@@ -296,27 +297,6 @@ func suggest(name string) string {
 		}
 	}
 	return best
-}
-
-func levenshtein(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
-			c := 1
-			if ra[i-1] == rb[j-1] {
-				c = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+c)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(rb)]
 }
 
 // builtins maps each built-in profile name to its constructor.
@@ -372,7 +352,7 @@ func Lookup(name string) (Profile, error) {
 	msg := fmt.Sprintf("%v %q (built in: %s", ErrUnknownProfile, name, strings.Join(Names(), ", "))
 	best, bestD := "", 4
 	for _, b := range builtins {
-		if d := levenshtein(n, b.name); d < bestD {
+		if d := suggest.Distance(n, b.name); d < bestD {
 			best, bestD = b.name, d
 		}
 	}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"partsieve/internal/suggest"
 	"sort"
 	"strings"
 
@@ -308,7 +309,7 @@ func (p *parser) suggest(name string, top bool) string {
 func suggestFrom(name string, cands []string) string {
 	best, bestD := "", 1<<30
 	for _, c := range cands {
-		d := levenshtein(strings.ToLower(name), c)
+		d := suggest.Distance(strings.ToLower(name), c)
 		if d < bestD {
 			best, bestD = c, d
 		}
@@ -327,27 +328,6 @@ func suggestFrom(name string, cands []string) string {
 		return ""
 	}
 	return "; did you mean " + best + "?"
-}
-
-func levenshtein(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
-			c := 1
-			if ra[i-1] == rb[j-1] {
-				c = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+c)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(rb)]
 }
 
 // tableOf returns raw[name] as a table; absent gives nil, a value that is

@@ -12,6 +12,7 @@ package where
 import (
 	"errors"
 	"fmt"
+	"partsieve/internal/suggest"
 	"sort"
 	"strings"
 
@@ -117,7 +118,7 @@ func parseOne(s string) (catalog.Cond, error) {
 	}
 	f, ok := catalog.FieldByName(name)
 	if !ok {
-		return catalog.Cond{}, &Error{Reason: "unknown field " + quote(name) + suggest(name)}
+		return catalog.Cond{}, &Error{Reason: "unknown field " + quote(name) + didYouMean(name)}
 	}
 	if val == "" {
 		return catalog.Cond{}, &Error{Reason: "missing value after " + quote(name+op)}
@@ -214,15 +215,15 @@ func matchEnum(f catalog.Field, v string) (string, bool) {
 
 func quote(s string) string { return fmt.Sprintf("%q", s) }
 
-// suggest names the closest canonical fields by edit distance.
-func suggest(name string) string {
+// didYouMean names the closest canonical fields by edit distance.
+func didYouMean(name string) string {
 	type cand struct {
 		n string
 		d int
 	}
 	var cs []cand
 	for _, f := range catalog.Fields {
-		d := distance(name, f.Name)
+		d := suggest.Distance(name, f.Name)
 		if d <= 2 || strings.HasPrefix(f.Name, name) {
 			cs = append(cs, cand{f.Name, d})
 		}
@@ -239,26 +240,4 @@ func suggest(name string) string {
 		names[i] = c.n
 	}
 	return "; did you mean " + strings.Join(names, " or ") + "?"
-}
-
-// distance is the Levenshtein edit distance between a and b.
-func distance(a, b string) int {
-	ra, rb := []rune(a), []rune(b)
-	prev := make([]int, len(rb)+1)
-	cur := make([]int, len(rb)+1)
-	for j := range prev {
-		prev[j] = j
-	}
-	for i := 1; i <= len(ra); i++ {
-		cur[0] = i
-		for j := 1; j <= len(rb); j++ {
-			cost := 1
-			if ra[i-1] == rb[j-1] {
-				cost = 0
-			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
-		}
-		prev, cur = cur, prev
-	}
-	return prev[len(rb)]
 }
