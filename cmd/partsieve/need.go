@@ -121,25 +121,39 @@ func printNeeds(a *app, ns *topology.NeedSet) error {
 		if n.Unsafe {
 			fmt.Fprintf(w, "  UNSAFE for this application: %s\n", n.UnsafeReason)
 		}
-		t := newTable(w, "  ROLE", "REQUIREMENT", "BOUND", "FORMULA", "FACTORS", "SOURCE")
 		for _, r := range n.Requirements {
 			bound := r.Op + " " + num(r.Value, r.Unit)
 			if math.IsNaN(float64(r.Value)) {
 				bound = r.Op + " (per part)"
 			}
-			var fs []string
-			for _, f := range r.Factors {
-				s := fmt.Sprintf("%s=%s %s", f.Name, strings.TrimSpace(num(f.Value, f.Unit)), f.Tag)
-				fs = append(fs, s)
-			}
 			name := r.Name
 			if r.Field != "" {
-				name += " (" + r.Field + ")"
+				name += " [" + r.Field + "]"
 			}
-			t.row("  "+r.Role, name, bound, r.Formula, strings.Join(fs, ", "), r.Source)
-		}
-		if err := t.flush(); err != nil {
-			return err
+			fmt.Fprintf(w, "  %-13s %s %s\n", r.Role, name, bound)
+			for _, l := range wrap(r.Formula, 90) {
+				fmt.Fprintf(w, "  %-13s   %s\n", "", l)
+			}
+			var fs []string
+			for _, f := range r.Factors {
+				s := fmt.Sprintf("%s = %s %s", f.Name, strings.TrimSpace(num(f.Value, f.Unit)), f.Tag)
+				if f.Tag == "[M]" {
+					s += " (unverified default)"
+				}
+				fs = append(fs, s)
+			}
+			src := r.Source
+			if len(fs) > 0 {
+				src = strings.Join(fs, ", ") + "; " + src
+			}
+			for _, l := range wrap("source: "+src, 90) {
+				fmt.Fprintf(w, "  %-13s   %s\n", "", l)
+			}
+			if r.Note != "" {
+				for _, l := range wrap("note: "+r.Note, 90) {
+					fmt.Fprintf(w, "  %-13s   %s\n", "", l)
+				}
+			}
 		}
 		for _, h := range n.Hazards {
 			fmt.Fprintf(w, "  hazard: %s\n", h)
