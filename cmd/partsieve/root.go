@@ -68,6 +68,7 @@ The catalog lives at --db, else $PARTSIEVE_DB, else ` + defaultDBHelp() + `.
 		newFieldsCmd(a),
 		newNeedCmd(a),
 		newPickCmd(a),
+		newShortlistCmd(a),
 		newCatalogCmd(a),
 	)
 	return root
