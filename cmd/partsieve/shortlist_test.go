@@ -57,6 +57,9 @@ func TestShortlistFiles(t *testing.T) {
 		t.Fatalf("shortlist --parts csv: code %d: %s", code, errs)
 	}
 	checkHostileCSV(t, hostileCSV)
+	if fi, err := os.Stat(hostile); err != nil || fi.Mode().Perm() != 0o644 {
+		t.Errorf("new workbook mode %v, %v; want 0644", fi.Mode(), err)
+	}
 	entries, _ := os.ReadDir(dir)
 	for _, e := range entries {
 		if strings.HasPrefix(e.Name(), ".") {
@@ -410,11 +413,17 @@ func TestShortlistErrors(t *testing.T) {
 	}
 	// a CSV by extension, in any case; an existing file is replaced
 	csvOut := filepath.Join(dir, "Order.CSV")
-	if err := os.WriteFile(csvOut, []byte("old"), 0o644); err != nil {
+	if err := os.WriteFile(csvOut, []byte("old"), 0o640); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Chmod(csvOut, 0o640); err != nil {
 		t.Fatal(err)
 	}
 	if _, errs, code := runCLI(t, db, "shortlist", "vehicle-12v-accessory", "--out", csvOut, "--alternates", "0"); code != 0 {
 		t.Fatalf("csv: code %d: %s", code, errs)
+	}
+	if fi, err := os.Stat(csvOut); err != nil || fi.Mode().Perm() != 0o640 {
+		t.Errorf("replaced file: %v, %v; want its mode 0640 kept", fi.Mode(), err)
 	}
 	data, _ := os.ReadFile(csvOut)
 	if !strings.HasPrefix(string(data), "Design,Topology,Line,") || strings.Contains(string(data), ",alternate,") {

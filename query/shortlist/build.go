@@ -50,103 +50,103 @@ const (
 
 // Line is one row of the shortlist.
 type Line struct {
-	Design   string            `json:"design"`
-	Topology topology.Topology `json:"topology,omitempty"`
-	Kind     string            `json:"line"`
-	Role     string            `json:"role,omitempty"`
-	Mfr      string            `json:"mfr,omitempty"`
-	MPN      string            `json:"mpn,omitempty"`
-	Type     string            `json:"type,omitempty"`
-	Package  string            `json:"package,omitempty"`
+	Design   string
+	Topology topology.Topology
+	Kind     string
+	Role     string
+	Mfr      string
+	MPN      string
+	Type     string
+	Package  string
 	// Ratings summarises the part's key ratings in words ("V_DS 60 V,
 	// R_DS(on) 16 mΩ @ 10 V, ..."); VRating and IRating are its main
 	// voltage and current ratings (V, A; NaN when none).
-	Ratings string  `json:"ratings,omitempty"`
-	VRating float64 `json:"v_rating"`
-	IRating float64 `json:"i_rating"`
+	Ratings string
+	VRating float64
+	IRating float64
 	// Loss and Drop are the stage's (W, V) with this line's part in its
 	// role; Tj is the part's junction temperature at its operating corner
 	// (°C); Margin is the smallest margin of the part's own checks, named
 	// by MarginCheck. NaN when not applicable.
-	Loss        float64 `json:"loss"`
-	Drop        float64 `json:"drop"`
-	Tj          float64 `json:"tj"`
-	Margin      float64 `json:"margin"`
-	MarginCheck string  `json:"margin_check,omitempty"`
+	Loss        float64
+	Drop        float64
+	Tj          float64
+	Margin      float64
+	MarginCheck string
 	// PerBoard is the number of pieces per board.
-	PerBoard int64 `json:"per_board,omitempty"`
-	Order    Order `json:"order"`
+	PerBoard int64
+	Order    Order
 	// PerBoardCost is Extended / build quantity (build currency).
-	PerBoardCost float64 `json:"per_board_cost"`
-	Note         string  `json:"note,omitempty"`
+	PerBoardCost float64
+	Note         string
 }
 
 // CheckRow is one check of a listed part, for the Checks sheet.
 type CheckRow struct {
-	Design   string            `json:"design"`
-	Topology topology.Topology `json:"topology,omitempty"`
+	Design   string
+	Topology topology.Topology
 	// Evaluation says which evaluation the check belongs to: "design", or
 	// "alternate <role> <MPN>" for a design re-evaluated with an
 	// alternate in place, or "<role>" for a part of a --parts list.
-	Evaluation string `json:"evaluation"`
+	Evaluation string
 	// Part is the part number the check is about (several joined by " + "
 	// for pair and stage checks).
-	Part  string         `json:"part"`
-	Check topology.Check `json:"check"`
+	Part  string
+	Check topology.Check
 }
 
 // Cost is a roll-up in the build currency.
 type Cost struct {
 	// Extended is the sum of the costed lines' extended costs.
-	Extended float64 `json:"extended"`
+	Extended float64
 	// PerBoard is Extended divided by the build quantity.
-	PerBoard float64 `json:"per_board"`
+	PerBoard float64
 	// Uncosted counts catalog lines without a cost (the sum is then
 	// incomplete); Short counts lines short of stock.
-	Uncosted int `json:"uncosted"`
-	Short    int `json:"short"`
+	Uncosted int
+	Short    int
 }
 
 // Design is one design of the shortlist with its lines.
 type Design struct {
-	Label    string            `json:"label"`
-	Topology topology.Topology `json:"topology,omitempty"`
-	Title    string            `json:"title"`
-	Rank     int               `json:"rank,omitempty"`
+	Label    string
+	Topology topology.Topology
+	Title    string
+	Rank     int
 	// Loss, Drop, TjHot and MinMargin are the stage's figures as in the
 	// pick (NaN for a --parts list).
-	Loss           float64 `json:"loss"`
-	Drop           float64 `json:"drop"`
-	TjHot          float64 `json:"tj_hot"`
-	MinMargin      float64 `json:"min_margin"`
-	MinMarginCheck string  `json:"min_margin_check,omitempty"`
+	Loss           float64
+	Drop           float64
+	TjHot          float64
+	MinMargin      float64
+	MinMarginCheck string
 	Hazards        []string
 	// Lines holds the parts, the generic gate resistor, then the
 	// alternates; Cost rolls up the parts (alternates are not counted).
-	Lines  []Line     `json:"lines"`
-	Checks []CheckRow `json:"checks"`
-	Cost   Cost       `json:"cost"`
+	Lines  []Line
+	Checks []CheckRow
+	Cost   Cost
 }
 
 // Shortlist is a purchase shortlist: designs with their order lines,
 // the requirement set, every check and the assumptions.
 type Shortlist struct {
-	Spec        string             `json:"spec"`
-	Policy      string             `json:"policy"`
-	PolicyTitle string             `json:"policy_title"`
-	Quantity    int64              `json:"quantity"`
-	Currency    string             `json:"currency"`
-	Rates       map[string]float64 `json:"rates,omitempty"`
-	Options     Options            `json:"-"`
-	Rank        topology.RankBy    `json:"rank"`
-	Designs     []Design           `json:"designs"`
-	Total       Cost               `json:"total"`
-	Needs       *topology.NeedSet  `json:"needs"`
-	Factors     []derate.Factor    `json:"-"`
+	Spec        string
+	Policy      string
+	PolicyTitle string
+	Quantity    int64
+	Currency    string
+	Rates       map[string]float64
+	Options     Options
+	Rank        topology.RankBy
+	Designs     []Design
+	Total       Cost
+	Needs       *topology.NeedSet
+	Factors     []derate.Factor
 	// Notes are the spec's notes and what the pick left out (ranked-out
 	// topologies, topologies where nothing qualifies).
-	Notes    []string `json:"notes,omitempty"`
-	Cautions []string `json:"cautions"`
+	Notes    []string
+	Cautions []string
 }
 
 // Lines returns every row of the shortlist in order: per design its lines
@@ -439,11 +439,13 @@ func checkRows(d *Design, eval string, c *topology.Candidate) []CheckRow {
 // parts lists explicit part numbers as one design.
 func (b *builder) parts(mpns []string) error {
 	d := Design{Label: "parts list", Title: "parts given with --parts", Loss: nan(), Drop: nan(), TjHot: nan(), MinMargin: nan()}
+	seen := map[string]bool{}
 	for _, mpn := range mpns {
 		mpn = strings.TrimSpace(mpn)
-		if mpn == "" {
+		if mpn == "" || seen[catalog.NormKey(mpn)] {
 			continue
 		}
+		seen[catalog.NormKey(mpn)] = true
 		ex, err := topology.ExplainCatalog(b.s, b.cat, mpn, b.topt)
 		if err != nil {
 			return fmt.Errorf("%w: %v", ErrNoPart, err)

@@ -242,7 +242,7 @@ func TestBuildParts(t *testing.T) {
 	ctx := context.Background()
 	st := seedCatalog(t)
 	s, _ := exampleSpec(t, "sensor-24v-industrial")
-	sl, err := Build(ctx, st, s, Options{Parts: []string{"QPS30-40C", " lkz13j s2 ", "TMV4-5U"}, SparesPct: 10})
+	sl, err := Build(ctx, st, s, Options{Parts: []string{"QPS30-40C", " lkz13j s2 ", "TMV4-5U", "qps30 40c", ""}, SparesPct: 10})
 	if err != nil {
 		t.Fatal(err)
 	}

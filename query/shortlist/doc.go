@@ -14,7 +14,10 @@
 // working voltage, to be sourced, without a price. With Options.Parts the
 // shortlist lists explicit part numbers instead, each in the role its kind
 // and type give, with the checks of every role it can take
-// (topology.ExplainCatalog).
+// (topology.ExplainCatalog); a part number given twice is listed once. Such
+// a list has no stage figures (loss, drop: the parts are not one design)
+// and no alternates; each line shows the part's smallest margin and
+// junction temperature in the role where it does best.
 //
 // # Quantities and cost
 //

@@ -61,35 +61,35 @@ const (
 // offer it comes from.
 type Order struct {
 	// Needed is build × parts per board; WithSpares adds the spares.
-	Needed     int64 `json:"needed"`
-	WithSpares int64 `json:"with_spares"`
+	Needed     int64
+	WithSpares int64
 	// Qty is the order quantity: WithSpares raised to the offer's minimum,
 	// max(MOQ, first price break).
-	Qty int64 `json:"qty"`
+	Qty int64
 	// MOQ is the offer's minimum order quantity (0 when not stated).
-	MOQ int64 `json:"moq,omitempty"`
+	MOQ int64
 	// BreakQty is the quantity of the price break that applies: the
 	// largest break not above Qty (0 when the offer has no price).
-	BreakQty int64 `json:"break_qty,omitempty"`
+	BreakQty int64
 	// OfferPrice is the unit price of that break in OfferCurrency.
-	OfferPrice    float64 `json:"offer_price"`
-	OfferCurrency string  `json:"offer_currency,omitempty"`
+	OfferPrice    float64
+	OfferCurrency string
 	// Rate converts OfferCurrency to the build currency (1 for the same
 	// currency; NaN when the spec gives no rate).
-	Rate float64 `json:"rate"`
+	Rate float64
 	// Unit and Extended (= Qty × Unit) are in the build currency; NaN
 	// when the line is not costed.
-	Unit     float64 `json:"unit_price"`
-	Extended float64 `json:"extended"`
-	Costed   bool    `json:"costed"`
-	Supplier string  `json:"supplier,omitempty"`
-	SKU      string  `json:"sku,omitempty"`
+	Unit     float64
+	Extended float64
+	Costed   bool
+	Supplier string
+	SKU      string
 	// Stock is the chosen offer's stock (nil when not stated).
-	Stock       *int64 `json:"stock,omitempty"`
-	StockStatus string `json:"stock_status"`
+	Stock       *int64
+	StockStatus string
 	// Note says why a line is not costed and which offers were not
 	// compared.
-	Note string `json:"note,omitempty"`
+	Note string
 }
 
 // Generic returns the order of a line that has no catalog part (the gate
