@@ -193,10 +193,14 @@ func (niceTicks) Ticks(lo, hi float64) []plot.Tick {
 			break
 		}
 	}
-	dec := max(0, -int(math.Floor(math.Log10(step)+1e-9)))
-	if r := step / math.Pow(10, math.Floor(math.Log10(step)+1e-9)); math.Abs(r-2.5) < 1e-9 {
+	// digits after the point: those of the step's power of ten, one more
+	// for a step of 2.5·10^k
+	e := math.Floor(math.Log10(step) + 1e-9)
+	dec := -int(e)
+	if math.Abs(step/math.Pow(10, e)-2.5) < 1e-9 {
 		dec++
 	}
+	dec = max(0, dec)
 	var ts []plot.Tick
 	for k := math.Ceil(lo/step - 1e-9); k*step <= hi+1e-9*span; k++ {
 		v := k * step

@@ -118,16 +118,16 @@ type partView struct {
 }
 
 type candView struct {
-	Rank                            int
-	Parts                           []partView
-	GateResistor                    string
-	Loss, Tj, Drop, Cost, Stock     string
-	Margin, MarginCheck             string
-	MarginFails, MarginThin         bool
-	Fault                           string
-	Hazards                         []string
-	Unsafe                          bool
-	Checks                          []checkView
+	Rank                        int
+	Parts                       []partView
+	GateResistor                string
+	Loss, Tj, Drop, Cost, Stock string
+	Margin, MarginCheck         string
+	MarginFails, MarginThin     bool
+	Fault                       string
+	Hazards                     []string
+	Unsafe                      bool
+	Checks                      []checkView
 }
 
 type checkView struct {
