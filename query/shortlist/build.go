@@ -156,7 +156,7 @@ func (sl *Shortlist) Lines() []Line {
 	for i := range sl.Designs {
 		d := &sl.Designs[i]
 		out = append(out, d.Lines...)
-		out = append(out, d.totalLine(sl))
+		out = append(out, d.totalLine())
 	}
 	out = append(out, sl.totalLine())
 	return out
@@ -598,7 +598,7 @@ func (d *Design) rollUp(build int64) {
 }
 
 // totalLine is the design's roll-up row.
-func (d *Design) totalLine(sl *Shortlist) Line {
+func (d *Design) totalLine() Line {
 	l := Line{Design: d.Label, Topology: d.Topology, Kind: KindSubtotal, Loss: d.Loss, Drop: d.Drop, Tj: d.TjHot,
 		Margin: d.MinMargin, MarginCheck: d.MinMarginCheck, VRating: nan(), IRating: nan(),
 		Order: Order{Unit: nan(), Extended: d.Cost.Extended, OfferPrice: nan(), Rate: nan()}, PerBoardCost: d.Cost.PerBoard}
