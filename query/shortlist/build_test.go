@@ -21,7 +21,19 @@ var (
 	seedOnce  sync.Once
 	seedStore *catalog.Store
 	seedErr   error
+	seedDir   string
 )
+
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if seedStore != nil {
+		seedStore.Close()
+	}
+	if seedDir != "" {
+		os.RemoveAll(seedDir)
+	}
+	os.Exit(code)
+}
 
 // seedCatalog returns a store holding the seed catalog, imported once per
 // test binary through the real importer.
@@ -33,6 +45,7 @@ func seedCatalog(t testing.TB) *catalog.Store {
 			seedErr = err
 			return
 		}
+		seedDir = dir
 		ctx := context.Background()
 		st, err := catalog.Open(ctx, filepath.Join(dir, "catalog.db"))
 		if err != nil {
