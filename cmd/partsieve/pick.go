@@ -17,6 +17,7 @@ type pickOptions struct {
 	top     int
 	rank    string
 	explain string
+	report  string
 }
 
 func newPickCmd(a *app) *cobra.Command {
@@ -39,7 +40,8 @@ check that eliminated most parts.`,
 		Example: `  partsieve pick vehicle-12v-accessory
   partsieve pick my-input.toml --topology pfet-high,nfet-low --rank cost --top 3
   partsieve pick sensor-24v-industrial --explain QPS30-40C
-  partsieve pick handheld-2s-liion --format json > picks.json`,
+  partsieve pick handheld-2s-liion --format json > picks.json
+  partsieve pick vehicle-12v-accessory --report picks.html`,
 		Args: args(cobra.ExactArgs(1)),
 		RunE: func(cmd *cobra.Command, argv []string) error {
 			return runPick(cmd, a, o, argv[0])
@@ -50,6 +52,7 @@ check that eliminated most parts.`,
 	f.IntVar(&o.top, "top", 5, "candidates shown per topology")
 	f.StringVar(&o.rank, "rank", "loss", "ranking: loss, margin or cost")
 	f.StringVar(&o.explain, "explain", "", "show every check of this part number")
+	f.StringVar(&o.report, "report", "", "also write a self-contained HTML report (tables and plots) to this file")
 	return c
 }
 
@@ -69,6 +72,9 @@ func runPick(cmd *cobra.Command, a *app, o pickOptions, specArg string) error {
 	}
 	if o.top < 1 {
 		return usageErr(fmt.Errorf("--top %d: must be at least 1", o.top), "")
+	}
+	if o.report != "" && o.explain != "" {
+		return usageErr(fmt.Errorf("--report and --explain cannot be used together"), "--report writes the report of a pick")
 	}
 	s, err := loadSpec(specArg)
 	if err != nil {
@@ -101,6 +107,11 @@ func runPick(cmd *cobra.Command, a *app, o pickOptions, specArg string) error {
 		}
 	} else if err := printPick(a, res); err != nil {
 		return err
+	}
+	if o.report != "" {
+		if err := writeReport(ctx, a, st, s, specArg, res, o.report); err != nil {
+			return err
+		}
 	}
 	if !res.Qualified() {
 		if e, t, ok := res.TopEliminator(); ok {
