@@ -150,6 +150,17 @@ func TestPickReportRefusals(t *testing.T) {
 	if code != exitUsage || !strings.Contains(errs, "--report and --explain") {
 		t.Errorf("--report with --explain: code %d, stderr %q", code, errs)
 	}
+	// nothing qualifies: exit 4, the report is still written, without plots
+	none := filepath.Join(dir, "none.html")
+	_, errs, code = runCLI(t, db, "pick", "vehicle-12v-accessory", "--topology", "series-diode", "--report", none)
+	if code != exitNoMatch || !strings.Contains(errs, "report written to "+none) {
+		t.Errorf("--report when nothing qualifies: code %d, stderr %q", code, errs)
+	}
+	if b, err := os.ReadFile(none); err != nil {
+		t.Error(err)
+	} else if svgs, text, _ := reportSummary(t, b); svgs != 0 || !strings.Contains(text, "no part qualifies") {
+		t.Errorf("report when nothing qualifies: %d plots, reason shown: %v", svgs, strings.Contains(text, "no part qualifies"))
+	}
 	// no temporary file left behind
 	ents, _ := os.ReadDir(dir)
 	for _, e := range ents {
