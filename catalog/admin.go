@@ -210,7 +210,18 @@ func (s *Store) Reindex(ctx context.Context) error {
 // reported (the next text search rebuilds it); it is not an error.
 func (s *Store) Check(ctx context.Context) ([]string, error) {
 	var problems []string
-	fail := func(err error) ([]string, error) { return nil, fmt.Errorf("catalog %s: check: %w", s.Path, err) }
+	fail := func(err error) ([]string, error) {
+		if notDatabase(err) {
+			// SQLite stops reading a damaged file with SQLITE_CORRUPT
+			// (even PRAGMA integrity_check can): that is the finding,
+			// reported with those made so far
+			return append(problems, fmt.Sprintf("sqlite integrity: the catalog file is damaged (%v)", err)), nil
+		}
+		if why := storageTrouble(err); why != "" {
+			return nil, fmt.Errorf("catalog %s: check: %s (%w)", s.Path, why, err)
+		}
+		return nil, fmt.Errorf("catalog %s: check: %w", s.Path, err)
+	}
 	rows, err := s.db.QueryContext(ctx, `PRAGMA integrity_check`)
 	if err != nil {
 		return fail(err)

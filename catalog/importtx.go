@@ -81,7 +81,7 @@ func (s *Store) BeginImport(ctx context.Context, src Source) (*ImportTx, error) 
 		if isBusy(err) {
 			return nil, fmt.Errorf("another import is writing to catalog %s; try again when it finishes", s.Path)
 		}
-		return nil, fmt.Errorf("catalog %s: cannot start the import: %w", s.Path, err)
+		return nil, s.beginErr(err)
 	}
 	t := &ImportTx{s: s, ctx: ctx, tx: tx, src: src, now: src.Time.Unix()}
 	if err := t.prepare(); err != nil {
@@ -89,9 +89,16 @@ func (s *Store) BeginImport(ctx context.Context, src Source) (*ImportTx, error) 
 		if isBusy(err) {
 			return nil, fmt.Errorf("another import is writing to catalog %s; try again when it finishes", s.Path)
 		}
-		return nil, fmt.Errorf("catalog %s: cannot start the import: %w", s.Path, err)
+		return nil, s.beginErr(err)
 	}
 	return t, nil
+}
+
+func (s *Store) beginErr(err error) error {
+	if why := storageTrouble(err); why != "" {
+		return fmt.Errorf("catalog %s: cannot start the import: %s (%w)", s.Path, why, err)
+	}
+	return fmt.Errorf("catalog %s: cannot start the import: %w", s.Path, err)
 }
 
 func (t *ImportTx) prepare() error {
@@ -277,6 +284,10 @@ func (t *ImportTx) Put(p *Part) (Outcome, []Change, error) {
 }
 
 func (t *ImportTx) fail(err error) error {
+	if why := storageTrouble(err); why != "" {
+		// the caller rolls the import back: say that nothing of it stays
+		return fmt.Errorf("catalog %s: %s (%w); nothing of this import was written", t.s.Path, why, err)
+	}
 	return fmt.Errorf("catalog %s: %w", t.s.Path, err)
 }
 
@@ -742,6 +753,10 @@ func (t *ImportTx) Commit(counts Source) error {
 		return t.fail(err)
 	}
 	if err := t.tx.Commit(); err != nil {
+		if why := storageTrouble(err); why != "" {
+			// a failed COMMIT leaves the catalog as it was before the import
+			return fmt.Errorf("catalog %s: the import could not be committed: %s (%w); nothing of it was written", t.s.Path, why, err)
+		}
 		return fmt.Errorf("catalog %s: the import could not be committed: %w", t.s.Path, err)
 	}
 	if t.dirty {

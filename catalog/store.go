@@ -13,6 +13,7 @@ import (
 	"path/filepath"
 	"strconv"
 	"sync"
+	"syscall"
 	"time"
 
 	"github.com/blevesearch/bleve/v2"
@@ -124,8 +125,9 @@ func Open(ctx context.Context, path string) (*Store, error) {
 // that cannot be written.
 func checkExisting(abs, path string, size int64) error {
 	f, err := os.OpenFile(abs, os.O_RDWR, 0)
-	if errors.Is(err, fs.ErrPermission) {
-		return fmt.Errorf("catalog %s is read-only (%v); partsieve needs to write to it: fix its permissions or use another --db", path, err)
+	if errors.Is(err, fs.ErrPermission) || errors.Is(err, syscall.EROFS) {
+		// EROFS: the file system is mounted read-only
+		return fmt.Errorf("catalog %s is read-only (%v); partsieve needs to write to it: fix its permissions or use another --db", path, unwrapPath(err))
 	}
 	if err != nil {
 		return fmt.Errorf("catalog %s: %w", path, err)
@@ -141,11 +143,19 @@ func checkExisting(abs, path string, size int64) error {
 	return nil
 }
 
+func unwrapPath(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
 // checkDirWritable makes sure SQLite can create the -wal and -shm files.
 func checkDirWritable(dir, path string) error {
 	f, err := os.CreateTemp(dir, ".partsieve-probe-*")
 	if err != nil {
-		if errors.Is(err, fs.ErrPermission) || errors.Is(err, fs.ErrExist) || os.IsPermission(err) {
+		if errors.Is(err, fs.ErrPermission) || errors.Is(err, fs.ErrExist) || os.IsPermission(err) || errors.Is(err, syscall.EROFS) {
 			return fmt.Errorf("catalog %s: directory %s is not writable (%v); the catalog keeps its journal files beside it", path, dir, err)
 		}
 		return fmt.Errorf("catalog %s: directory %s: %w", path, dir, err)
@@ -180,12 +190,43 @@ func readOnlyErr(err error) bool {
 	return c == sqlite3.SQLITE_READONLY || c == sqlite3.SQLITE_CANTOPEN || c == sqlite3.SQLITE_PERM
 }
 
+// storageTrouble explains an SQLite error that comes from the disk or the
+// file rather than from what the catalog holds, or returns "". SQLite's
+// own texts ("disk I/O error (4874)") do not tell a user what to do; a
+// full disk shows as SQLITE_FULL when a write fails and as
+// SQLITE_IOERR_SHMSIZE when even the small -shm file beside the catalog
+// cannot be created.
+func storageTrouble(err error) string {
+	var se *sqlite.Error
+	if !errors.As(err, &se) {
+		return ""
+	}
+	switch se.Code() & 0xff {
+	case sqlite3.SQLITE_FULL:
+		return "the disk is full"
+	case sqlite3.SQLITE_IOERR:
+		if se.Code() == sqlite3.SQLITE_IOERR_SHMSIZE {
+			return "cannot write the shared-memory file beside the catalog: the disk is probably full"
+		}
+		return "the disk reported an input/output error (full, failing or removed)"
+	case sqlite3.SQLITE_CORRUPT:
+		return "the catalog file is damaged"
+	}
+	return ""
+}
+
 // prepare checks what the file holds and migrates it to schemaVersion.
 func (s *Store) prepare(ctx context.Context, path string) error {
 	wrap := func(err error) error {
 		switch {
+		case sqliteCode(err) == sqlite3.SQLITE_CORRUPT:
+			// the SQLite header was read, so this is a damaged database
+			// rather than some other file
+			return fmt.Errorf("catalog %s is damaged (%v): restore it from a backup copy, or move it away and import the spreadsheets again", path, err)
 		case notDatabase(err):
-			return fmt.Errorf("file %s is not a partsieve catalog: %v", path, err)
+			return fmt.Errorf("file %s is not a partsieve catalog, or it is damaged: %v", path, err)
+		case storageTrouble(err) != "":
+			return fmt.Errorf("catalog %s: %s (%v)", path, storageTrouble(err), err)
 		case readOnlyErr(err):
 			return fmt.Errorf("catalog %s cannot be written: %v", path, err)
 		case isBusy(err):

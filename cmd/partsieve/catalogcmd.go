@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"sort"
+	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -190,7 +191,15 @@ func newCatalogCheckCmd(a *app) *cobra.Command {
 			if len(problems) == 1 {
 				noun = "problem"
 			}
-			return withHint(fmt.Errorf("%d %s found in %s", len(problems), noun, st.Path), "a stale text index is fixed by 'partsieve catalog reindex'")
+			hint := "a stale text index is fixed by 'partsieve catalog reindex'"
+			for _, p := range problems {
+				if !strings.HasPrefix(p, "text index:") {
+					// reindexing cannot repair the SQLite file itself
+					hint = "the catalog file itself is damaged: restore a backup copy, or move it away and import the spreadsheets again"
+					break
+				}
+			}
+			return withHint(fmt.Errorf("%d %s found in %s", len(problems), noun, st.Path), hint)
 		},
 	}
 }

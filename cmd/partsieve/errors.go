@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"strings"
 )
 
 // Exit codes, documented in the root command's help and in the README.
@@ -67,5 +68,20 @@ func report(stderr io.Writer, err error) int {
 		}
 		return cl.code
 	}
+	if h := damageHint(err); h != "" {
+		fmt.Fprintf(stderr, "Hint: %s\n", h)
+	}
 	return exitError
+}
+
+// damageHint returns advice for an error that says the catalog file is
+// damaged, met while reading or writing it rather than when opening it
+// (where the message already gives the advice); "" otherwise. SQLite's
+// text for SQLITE_CORRUPT is "database disk image is malformed".
+func damageHint(err error) string {
+	msg := err.Error()
+	if strings.Contains(msg, "database disk image is malformed") && !strings.Contains(msg, "restore") {
+		return "the catalog file is damaged; 'partsieve catalog check' reports the damage; restore a backup copy, or move it away and import the spreadsheets again"
+	}
+	return ""
 }

@@ -93,6 +93,9 @@ func runImport(cmd *cobra.Command, a *app, o importOptions, files []string) erro
 		if err != nil {
 			failed = append(failed, err)
 			fmt.Fprintf(a.stderr, "Error: %v\n", err)
+			if h := damageHint(err); h != "" {
+				fmt.Fprintf(a.stderr, "Hint: %s\n", h)
+			}
 			continue
 		}
 		sums = append(sums, sum)
