@@ -155,6 +155,10 @@ func (s *Store) currentIndexLocked(ctx context.Context, gen int64) (bleve.Index,
 		}
 		s.closeIndexLocked()
 	}
+	// A rebuild killed between swapping its new index in and removing the
+	// old one leaves PATH.bleve.old-PID beside a current index, which no
+	// rebuild would then clean: clean here, on the first use in a process.
+	cleanLeftovers(s.indexDir())
 	ix, err := openIndex(s.indexDir(), false)
 	if errors.Is(err, errIndexBusy) {
 		return nil, err

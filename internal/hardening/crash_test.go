@@ -28,7 +28,11 @@ import (
 //     found exactly in the new state, and the word only in revised
 //     descriptions finds every revised part there and nothing in the old;
 //     neither search falls back to the plain substring search;
-//   - after those searches `catalog check` is clean.
+//   - when the index was stale, the first text search (which rebuilds
+//     it) is killed too at a random moment; the check still passes or
+//     reports a stale index;
+//   - after those searches `catalog check` is clean, and no directory of
+//     a killed rebuild is left beside the index.
 //
 // PARTSIEVE_CRASH_RUNS sets the number of kills (default 50, 12 with
 // -short), PARTSIEVE_CRASH_SEED the seed of the delays.
@@ -62,13 +66,14 @@ func TestCrashDuringImport(t *testing.T) {
 
 	db := filepath.Join(t.TempDir(), "catalog.db")
 	newOnly := mpnOf(f.nBase + f.nNew - 1) // the last row: in the last index batch
-	var nCompleted, nOld, nNew, nStale int
+	var nCompleted, nOld, nNew, nStale, nRebuildKills int
 	start := time.Now()
 	for run := 1; run <= runs; run++ {
 		copyCatalog(t, f.oldDB, db)
+		rebuildKillsBefore := nRebuildKills
 		delay := time.Duration(rng.Int64N(int64(window)))
 		runStart := time.Now()
-		killed, out := importAndKill(t, bin, db, f.update, delay)
+		killed, out := runAndKill(t, bin, db, delay, "import", f.update)
 		what := "killed"
 		if !killed {
 			what = "finished first"
@@ -86,6 +91,17 @@ func TestCrashDuringImport(t *testing.T) {
 			}
 			stale = true
 			nStale++
+		}
+
+		if stale {
+			// kill the text search that rebuilds the stale index, too
+			delay2 := time.Duration(rng.Int64N(int64(window)))
+			if killed, _ := runAndKill(t, bin, db, delay2, "find", newOnly); killed {
+				nRebuildKills++
+				if chk := cli(t, db, "catalog", "check"); chk.code != 0 && !staleOnly(problems(chk.stdout)) {
+					t.Fatalf("run %d (seed %d): catalog check after killing a text index rebuild after %v:\n%s", run, seed, delay2, chk)
+				}
+			}
 		}
 
 		st := readState(t, db)
@@ -118,14 +134,20 @@ func TestCrashDuringImport(t *testing.T) {
 		if stale {
 			mustCheckClean(t, db, "after a text search rebuilt the stale index (run "+strconv.Itoa(run)+")")
 		}
+		if left, _ := filepath.Glob(db + ".bleve.*"); len(left) > 0 {
+			t.Fatalf("run %d (seed %d): directories of killed index rebuilds left behind after a rebuild: %v", run, seed, left)
+		}
 		index := "current"
 		if stale {
 			index = "stale, rebuilt by find"
 		}
+		if stale && nRebuildKills > rebuildKillsBefore {
+			index = "stale, rebuild killed, rebuilt by the next find"
+		}
 		t.Logf("run %2d: kill after %4dms: %s; catalog %s, text index %s (%v)", run, delay.Milliseconds(), what, stateName(isNew), index, time.Since(runStart).Round(time.Millisecond))
 	}
-	t.Logf("%d runs in %v: %d killed, %d finished before the kill; catalog old %d, new %d, never partial; text index stale after %d kills, rebuilt each time",
-		runs, time.Since(start).Round(time.Millisecond), runs-nCompleted, nCompleted, nOld, nNew, nStale)
+	t.Logf("%d runs in %v: %d killed, %d finished before the kill; catalog old %d, new %d, never partial; text index stale after %d kills, rebuilt each time (%d rebuilds killed too)",
+		runs, time.Since(start).Round(time.Millisecond), runs-nCompleted, nCompleted, nOld, nNew, nStale, nRebuildKills)
 	if runs >= 20 && (nOld == 0 || nNew == 0) {
 		t.Errorf("the kills never hit one of the states (old %d, new %d): the delays do not cover the import", nOld, nNew)
 	}
@@ -145,11 +167,11 @@ func noFallback(t *testing.T, run int, r result) {
 	}
 }
 
-// importAndKill runs partsieve import and sends SIGKILL after delay. It
-// reports whether the signal killed the process (false: it exited first).
-func importAndKill(t *testing.T, bin, db, file string, delay time.Duration) (bool, result) {
+// runAndKill runs partsieve args and sends SIGKILL after delay. It reports
+// whether the signal killed the process (false: it exited first).
+func runAndKill(t *testing.T, bin, db string, delay time.Duration, args ...string) (bool, result) {
 	t.Helper()
-	cmd := exec.Command(bin, "--db", db, "import", file)
+	cmd := exec.Command(bin, append([]string{"--db", db}, args...)...)
 	cmd.Env = cliEnv()
 	var out, errb strings.Builder
 	cmd.Stdout, cmd.Stderr = &out, &errb
@@ -173,6 +195,6 @@ func importAndKill(t *testing.T, bin, db, file string, delay time.Duration) (boo
 		return true, r
 	}
 	r.code = exitCode(t, err)
-	checkNoPanic(t, []string{"import", file}, r)
+	checkNoPanic(t, args, r)
 	return false, r
 }
