@@ -183,14 +183,20 @@ func printSummary(w io.Writer, s *importers.Summary, rejectsFile string) {
 
 // writeFileAtomic writes data to a temporary file beside path and renames
 // it into place, so a failure never leaves a half-written file. A path that
-// is an existing directory or a symbolic link is refused.
+// is an existing directory or a symbolic link is refused. The file keeps
+// the permissions of the file it replaces, else gets 0644 (the temporary
+// file starts private, 0600).
 func writeFileAtomic(path string, data []byte) error {
+	mode := os.FileMode(0o644)
 	if fi, err := os.Lstat(path); err == nil {
 		if fi.Mode()&os.ModeSymlink != 0 {
 			return fmt.Errorf("%s is a symbolic link; give a plain file path", path)
 		}
 		if fi.IsDir() {
 			return fmt.Errorf("%s is a directory", path)
+		}
+		if fi.Mode().IsRegular() {
+			mode = fi.Mode().Perm()
 		}
 	}
 	dir := filepath.Dir(path)
@@ -199,6 +205,11 @@ func writeFileAtomic(path string, data []byte) error {
 		return err
 	}
 	if _, err := tmp.Write(data); err != nil {
+		tmp.Close()
+		os.Remove(tmp.Name())
+		return err
+	}
+	if err := tmp.Chmod(mode); err != nil {
 		tmp.Close()
 		os.Remove(tmp.Name())
 		return err

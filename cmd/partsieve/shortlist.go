@@ -139,16 +139,7 @@ func runShortlist(cmd *cobra.Command, a *app, o shortlistOptions, specArg string
 	if err != nil {
 		return fmt.Errorf("writing %s: %w", o.out, err)
 	}
-	// the temporary file is private (0600); the shortlist is meant to be
-	// shared: keep the mode of the file it replaces, else 0644
-	mode := os.FileMode(0o644)
-	if fi, err := os.Lstat(o.out); err == nil && fi.Mode().IsRegular() {
-		mode = fi.Mode().Perm()
-	}
 	if err := writeFileAtomic(o.out, buf.Bytes()); err != nil {
-		return fmt.Errorf("writing --out: %w", err)
-	}
-	if err := os.Chmod(o.out, mode); err != nil {
 		return fmt.Errorf("writing --out: %w", err)
 	}
 	printShortlist(a, sl, o.out)
