@@ -1,19 +1,30 @@
 // Package hardening holds the crash-safety, concurrency and hostile-catalog
-// tests of partsieve. They build the real partsieve binary once and run it
-// in child processes against throw-away catalogs:
+// tests of partsieve. They build the real partsieve binary once
+// (CGO_ENABLED=0) and run it in child processes against throw-away
+// catalogs made from generated supplier sheets (1000 base rows; an update
+// of those rows plus 4000 new ones):
 //
-//   - TestCrashDuringImport kills an import with SIGKILL at random (seeded)
-//     moments and checks, every time, that `partsieve catalog check` passes
-//     (or reports a text index that is only stale and is rebuilt by the next
-//     text search) and that the catalog holds exactly the old state or
-//     exactly the complete import. PARTSIEVE_CRASH_RUNS sets the number of
-//     kills (default 50, 12 with -short), PARTSIEVE_CRASH_SEED the seed,
-//     PARTSIEVE_CRASH_ROWS the size of the killed import.
-//   - TestReadersDuringImport and TestTwoImports run find, pick and a second
-//     import while an import runs in another process.
-//   - TestHostileCatalog covers a read-only catalog, a catalog from a newer
-//     schema, a damaged catalog file and a full disk (a small tmpfs, when
-//     the test may mount one).
+//   - TestCrashDuringImport (Unix) kills an import with SIGKILL at random,
+//     seeded moments, and the text index rebuild that follows when the
+//     index was left stale, and checks every time that `partsieve catalog
+//     check` passes (or reports only a stale text index, which the next
+//     text search rebuilds) and that the catalog holds exactly the old state
+//     or exactly the complete import.
+//   - TestReadersDuringImport runs find and pick in other processes while
+//     an import runs; TestTwoImports and TestSecondImportFailsWhileLocked
+//     start a second writer during an import.
+//   - TestReadOnlyCatalogFile, TestReadOnlyFileSystem, TestNewerSchemaCatalog,
+//     TestDamagedCatalog and TestFullDisk open hostile catalogs; the
+//     read-only file system and the full disk mount a small tmpfs (Linux,
+//     root), and skip when that is not allowed.
+//
+// Long runs: PARTSIEVE_CRASH_RUNS sets the number of kills (default 50, 12
+// with -short), PARTSIEVE_CRASH_SEED the seed of the delays (logged), and
+// PARTSIEVE_CRASH_ROWS the new rows of the update (from 20000 on, the import
+// takes the bulk path that drops and rebuilds the parametric indexes in its
+// transaction). For example:
+//
+//	PARTSIEVE_CRASH_RUNS=500 go test -timeout 0 -run Crash -v ./internal/hardening/
 //
 // The package has no code of its own besides this comment.
 package hardening

@@ -87,7 +87,12 @@ func TestFullDisk(t *testing.T) {
 	// room for the catalog and its side files, not for the update (which
 	// grows the catalog by several MB)
 	need := treeSize(t, f.oldDB) + treeSize(t, f.oldDB+".bleve")
-	dir := mountTmpfs(t, need+512<<10)
+	growth := treeSize(t, f.newDB) + treeSize(t, f.newDB+".bleve") - need
+	spare := min(growth/4, 512<<10)
+	if spare < 64<<10 {
+		t.Skipf("the update grows the catalog by only %d bytes: too little to fill a disk", growth)
+	}
+	dir := mountTmpfs(t, need+spare)
 	db := filepath.Join(dir, "catalog.db")
 	copyCatalog(t, f.oldDB, db)
 
