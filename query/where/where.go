@@ -71,7 +71,10 @@ func splitAnd(expr string) []string {
 		rest = t[:len(t)-4] + " and "
 	}
 	for {
-		lower := strings.ToLower(rest)
+		// ASCII-only lowering keeps byte offsets: strings.ToLower changes
+		// the length of invalid UTF-8 and of some letters (İ), and the
+		// offsets found in lower cut rest.
+		lower := asciiLower(rest)
 		i, n := -1, 0
 		if j := strings.Index(lower, " and "); j >= 0 {
 			i, n = j, 5
@@ -86,6 +89,17 @@ func splitAnd(expr string) []string {
 		out = append(out, rest[:i])
 		rest = rest[i+n:]
 	}
+}
+
+// asciiLower lowers A-Z only, so that the result has the byte offsets of s.
+func asciiLower(s string) string {
+	b := []byte(s)
+	for i, c := range b {
+		if 'A' <= c && c <= 'Z' {
+			b[i] = c + 'a' - 'A'
+		}
+	}
+	return string(b)
 }
 
 func parseOne(s string) (catalog.Cond, error) {
