@@ -1,0 +1,193 @@
+// Command partsieve-bench measures partsieve at scale on a synthetic catalog
+// (seeddata/synth) and prints the figures beside the engine references and
+// the targets of the scale issue:
+//
+//	go run ./cmd/partsieve-bench -rows 1000000
+//
+// It generates the data into a temporary directory, then runs every phase
+// as a child process of itself, so that each phase's peak resident memory
+// (rusage ru_maxrss of the child) is its own:
+//
+//	gen       write the CSV (-rows rows, canonical headers) and a 100,000-row
+//	          XLSX (plain-word headers, units in cells)
+//	import    import the CSV into a new catalog; "parts usable" is when the
+//	          commit is visible to another connection (the catalog
+//	          generation changes), "text index ready" is when ImportFile
+//	          returns (the index is updated after the commit)
+//	sqlite3   the C sqlite3 shell's .import of the same CSV into a typed table
+//	bleve     raw bleve batch indexing (batch 10,000) of mfr, mpn, desc, package
+//	xlsx      import of the XLSX into a new catalog
+//	find      catalog.Store.Search latencies (p50/p90) of parametric and
+//	          text queries, and the same SQL in the sqlite3 shell (.timer)
+//	pick      topology.Pick per example spec on the store, against
+//	          topology.Evaluate over the same parts already in memory
+//
+// The figures depend on the machine; the targets are those of the scale
+// issue (parts usable ≤ 2× .import, text indexing ≥ 80 % of raw bleve
+// speed, find p50 ≤ 50 ms, pick ≤ 1 s per spec, import peak ≤ 300 MB).
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strings"
+	"syscall"
+	"time"
+)
+
+func main() {
+	rows := flag.Int("rows", 1000000, "rows of the generated CSV")
+	xrows := flag.Int("xlsx-rows", 100000, "rows of the generated XLSX")
+	seed := flag.Uint64("seed", 1, "generator seed")
+	dir := flag.String("dir", "", "work directory (default: a new temporary directory, removed at the end)")
+	keep := flag.Bool("keep", false, "keep the work directory")
+	phase := flag.String("phase", "", "internal: run one phase in this process")
+	reps := flag.Int("reps", 21, "repetitions of each find query")
+	flag.Parse()
+	if *phase != "" {
+		res, err := runPhase(*phase, *dir, *rows, *xrows, *seed, *reps)
+		if err != nil {
+			fmt.Fprintf(os.Stderr, "phase %s: %v\n", *phase, err)
+			os.Exit(1)
+		}
+		json.NewEncoder(os.Stdout).Encode(res)
+		return
+	}
+	if err := parent(*dir, *keep, *rows, *xrows, *seed, *reps); err != nil {
+		fmt.Fprintln(os.Stderr, "partsieve-bench:", err)
+		os.Exit(1)
+	}
+}
+
+// results maps a figure's name to its value (seconds, counts, MB).
+type results map[string]float64
+
+func parent(dir string, keep bool, rows, xrows int, seed uint64, reps int) error {
+	if dir == "" {
+		d, err := os.MkdirTemp("", "partsieve-bench-")
+		if err != nil {
+			return err
+		}
+		dir = d
+		if !keep {
+			defer os.RemoveAll(dir)
+		}
+	}
+	xrows = min(xrows, rows)
+	self, err := os.Executable()
+	if err != nil {
+		return err
+	}
+	all := results{}
+	peak := map[string]float64{}
+	phases := []string{"gen", "import", "sqlite3", "bleve", "xlsx", "find", "pick"}
+	for _, ph := range phases {
+		fmt.Fprintf(os.Stderr, "%s  phase %s ...\n", time.Now().Format("15:04:05"), ph)
+		cmd := exec.Command(self, "-phase", ph, "-dir", dir, "-rows", fmt.Sprint(rows),
+			"-xlsx-rows", fmt.Sprint(xrows), "-seed", fmt.Sprint(seed), "-reps", fmt.Sprint(reps))
+		var out bytes.Buffer
+		cmd.Stdout = &out
+		cmd.Stderr = os.Stderr
+		if err := cmd.Run(); err != nil {
+			return fmt.Errorf("phase %s: %w", ph, err)
+		}
+		var r results
+		if err := json.Unmarshal(out.Bytes(), &r); err != nil {
+			return fmt.Errorf("phase %s: %w", ph, err)
+		}
+		for k, v := range r {
+			all[k] = v
+		}
+		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
+			peak[ph] = float64(ru.Maxrss) / 1024 // Linux: KiB
+		}
+	}
+	report(os.Stdout, all, peak, rows, xrows)
+	return nil
+}
+
+// line is one row of the report.
+type line struct {
+	what, ours, ref, target, verdict string
+}
+
+func report(w *os.File, r results, peak map[string]float64, rows, xrows int) {
+	host, _ := os.Hostname()
+	fmt.Fprintf(w, "partsieve-bench: %d CSV rows, %d XLSX rows, %s/%s, %d CPUs, %s, host %s\n\n",
+		rows, xrows, runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), runtime.Version(), host)
+	var ls []line
+	pf := func(ok bool) string {
+		if ok {
+			return "PASS"
+		}
+		return "MISS"
+	}
+	ratePerS := func(n, s float64) string { return fmt.Sprintf("%.0f rows/s", n/s) }
+	n := float64(rows)
+	usable, ready := r["import_usable_s"], r["import_ready_s"]
+	if v, ok := r["sqlite3_import_s"]; ok {
+		ls = append(ls, line{"CSV import: parts usable (committed)", secs(usable),
+			".import " + secs(v) + fmt.Sprintf(" (+%s NULL fix-up)", secs(r["sqlite3_fixup_s"])),
+			"≤ 2× .import", pf(usable <= 2*v) + fmt.Sprintf(" (%.2f×)", usable/v)})
+	} else {
+		ls = append(ls, line{"CSV import: parts usable (committed)", secs(usable), "sqlite3 shell absent", "≤ 2× .import", "n/a"})
+	}
+	idx := ready - usable
+	braw := r["bleve_s"]
+	ls = append(ls, line{"CSV import: text index ready", secs(ready) + " (index " + secs(idx) + ", " + ratePerS(n, idx) + ")",
+		"raw bleve " + secs(braw) + " (" + ratePerS(n, braw) + ")", "≥ 80 % of raw bleve",
+		pf(braw/idx >= 0.8) + fmt.Sprintf(" (%.0f %%)", 100*braw/idx)})
+	ls = append(ls, line{"CSV import: peak RSS", mb(peak["import"]), ".import " + mb(r["sqlite3_peak_mb"]) + ", bleve " + mb(peak["bleve"]),
+		"≤ 300 MB", pf(peak["import"] <= 300)})
+	ls = append(ls, line{fmt.Sprintf("XLSX import (%d rows)", xrows), secs(r["xlsx_s"]) + ", peak " + mb(peak["xlsx"]), "", "", ""})
+	for _, q := range findQueries {
+		ref := "n/a"
+		if v, ok := r["sh_"+q.name+"_p50"]; ok {
+			ref = ms(v) + " / " + ms(r["sh_"+q.name+"_p90"])
+		}
+		p50 := r["find_"+q.name+"_p50"]
+		ls = append(ls, line{"find " + q.name + " p50/p90 (" + fmt.Sprint(r["find_"+q.name+"_n"]) + " hits)",
+			ms(p50) + " / " + ms(r["find_"+q.name+"_p90"]), ref, "p50 ≤ 50 ms", pf(p50 <= 0.050)})
+	}
+	ls = append(ls, line{"find phase peak RSS", mb(peak["find"]), "", "", ""})
+	names := []string{}
+	for k := range r {
+		if strings.HasPrefix(k, "pick_") && strings.HasSuffix(k, "_s") {
+			names = append(names, strings.TrimSuffix(strings.TrimPrefix(k, "pick_"), "_s"))
+		}
+	}
+	sort.Strings(names)
+	for _, nm := range names {
+		v := r["pick_"+nm+"_s"]
+		ls = append(ls, line{"pick " + nm, secs(v), "in-memory Evaluate " + ms(r["scan_"+nm+"_s"]), "≤ 1 s", pf(v <= 1)})
+	}
+	ls = append(ls, line{"pick phase peak RSS", mb(peak["pick"]), fmt.Sprintf("in-memory load of all parts %s", secs(r["scan_load_s"])), "", ""})
+	ls = append(ls, line{"generation (CSV + XLSX)", secs(r["gen_s"]) + ", peak " + mb(peak["gen"]), "", "", ""})
+	wd := []int{0, 0, 0, 0}
+	for _, l := range ls {
+		for i, s := range []string{l.what, l.ours, l.ref, l.target} {
+			wd[i] = max(wd[i], len([]rune(s)))
+		}
+	}
+	hdr := line{"measure", "partsieve", "reference", "target", "result"}
+	for _, l := range append([]line{hdr}, ls...) {
+		fmt.Fprintf(w, "%s  %s  %s  %s  %s\n", pad(l.what, wd[0]), pad(l.ours, wd[1]), pad(l.ref, wd[2]), pad(l.target, wd[3]), l.verdict)
+	}
+}
+
+func pad(s string, n int) string { return s + strings.Repeat(" ", max(0, n-len([]rune(s)))) }
+func secs(v float64) string      { return fmt.Sprintf("%.2f s", v) }
+func ms(v float64) string        { return fmt.Sprintf("%.1f ms", v*1000) }
+func mb(v float64) string        { return fmt.Sprintf("%.0f MB", v) }
+
+// csvPath and friends name the files of the work directory.
+func csvPath(dir string) string  { return filepath.Join(dir, "parts.csv") }
+func xlsxPath(dir string) string { return filepath.Join(dir, "parts.xlsx") }
+func catPath(dir string) string  { return filepath.Join(dir, "catalog.db") }

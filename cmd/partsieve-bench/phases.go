@@ -1,0 +1,435 @@
+package main
+
+import (
+	"bufio"
+	"context"
+	"database/sql"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"sort"
+	"strconv"
+	"strings"
+	"sync/atomic"
+	"syscall"
+	"time"
+
+	"github.com/blevesearch/bleve/v2"
+	_ "modernc.org/sqlite"
+
+	"partsieve/catalog"
+	"partsieve/importers"
+	"partsieve/query/spec"
+	"partsieve/query/topology"
+	"partsieve/seeddata"
+	"partsieve/seeddata/synth"
+)
+
+func runPhase(name, dir string, rows, xrows int, seed uint64, reps int) (results, error) {
+	ctx := context.Background()
+	switch name {
+	case "gen":
+		return phaseGen(dir, rows, xrows, seed)
+	case "import":
+		return phaseImport(ctx, dir)
+	case "sqlite3":
+		return phaseSQLite3(dir)
+	case "bleve":
+		return phaseBleve(dir)
+	case "xlsx":
+		return phaseXLSX(ctx, dir)
+	case "find":
+		return phaseFind(ctx, dir, rows, seed, reps)
+	case "pick":
+		return phasePick(ctx, dir)
+	}
+	return nil, fmt.Errorf("unknown phase %q", name)
+}
+
+func writeFile(path string, write func(io.Writer) error) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if err := write(f); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
+}
+
+func phaseGen(dir string, rows, xrows int, seed uint64) (results, error) {
+	t0 := time.Now()
+	g := synth.New(seed)
+	if err := writeFile(csvPath(dir), func(w io.Writer) error { return synth.WriteCSV(w, g, synth.Canonical, rows) }); err != nil {
+		return nil, err
+	}
+	if err := writeFile(xlsxPath(dir), func(w io.Writer) error { return synth.WriteXLSX(w, g, synth.Words, xrows) }); err != nil {
+		return nil, err
+	}
+	return results{"gen_s": time.Since(t0).Seconds()}, nil
+}
+
+// phaseImport imports the CSV into a new catalog. A second connection
+// polls the catalog generation every 5 ms: it changes in the import's
+// transaction, so the first poll that sees it marks the moment the parts
+// became usable by other processes.
+func phaseImport(ctx context.Context, dir string) (results, error) {
+	path := catPath(dir)
+	os.Remove(path)
+	os.RemoveAll(path + ".bleve")
+	st, err := catalog.Open(ctx, path)
+	if err != nil {
+		return nil, err
+	}
+	defer st.Close()
+	db, err := sql.Open("sqlite", "file:"+path+"?mode=ro&_pragma=busy_timeout(5000)")
+	if err != nil {
+		return nil, err
+	}
+	defer db.Close()
+	var usable atomic.Int64
+	stop := make(chan struct{})
+	done := make(chan struct{})
+	t0 := time.Now()
+	go func() {
+		defer close(done)
+		for {
+			select {
+			case <-stop:
+				return
+			case <-time.After(5 * time.Millisecond):
+			}
+			var gen string
+			if db.QueryRow(`SELECT value FROM meta WHERE key = 'generation'`).Scan(&gen) == nil && gen != "0" {
+				usable.Store(int64(time.Since(t0)))
+				return
+			}
+		}
+	}()
+	sum, err := importers.ImportFile(ctx, st, csvPath(dir), importers.Options{Source: "synth"})
+	ready := time.Since(t0)
+	if err != nil {
+		close(stop)
+		return nil, err
+	}
+	// the commit is visible by now: let the poller see it
+	select {
+	case <-done:
+	case <-time.After(2 * time.Second):
+		close(stop)
+		<-done
+	}
+	if sum.Rejected != 0 {
+		return nil, fmt.Errorf("%d rows rejected, first: %+v", sum.Rejected, sum.Rejects[0])
+	}
+	u := time.Duration(usable.Load())
+	if u == 0 {
+		return nil, errors.New("the poller never saw the commit")
+	}
+	return results{"import_usable_s": u.Seconds(), "import_ready_s": ready.Seconds(), "import_added": float64(sum.Added)}, nil
+}
+
+// shellDB is the sqlite3 shell's database.
+func shellDB(dir string) string { return filepath.Join(dir, "shell.db") }
+
+func quoteIdent(s string) string { return `"` + strings.ReplaceAll(s, `"`, `""`) + `"` }
+
+// phaseSQLite3 runs the C shell's .import of the CSV into a typed table
+// (REAL for number fields, INTEGER for stock and moq, TEXT otherwise),
+// with the pragmas of LIBRARIES.md, then the NULLIF fix-up of empty cells
+// (timed apart) and the indexes the find comparison uses (untimed).
+func phaseSQLite3(dir string) (results, error) {
+	bin, err := exec.LookPath("sqlite3")
+	if err != nil {
+		return results{}, nil // reported as absent
+	}
+	f, err := os.Open(csvPath(dir))
+	if err != nil {
+		return nil, err
+	}
+	header, err := csv.NewReader(bufio.NewReader(f)).Read()
+	f.Close()
+	if err != nil {
+		return nil, err
+	}
+	var cols, fix []string
+	for _, h := range header {
+		typ := "TEXT"
+		if fl, ok := catalog.FieldByName(h); ok && fl.Type == catalog.Number && h != "kind" {
+			typ = "REAL"
+		} else if h == "stock" || h == "moq" || strings.HasSuffix(h, "+") {
+			typ = "REAL"
+		}
+		cols = append(cols, quoteIdent(h)+" "+typ)
+		if typ == "REAL" {
+			fix = append(fix, quoteIdent(h)+" = NULLIF("+quoteIdent(h)+", '')")
+		}
+	}
+	db := shellDB(dir)
+	os.Remove(db)
+	if out, err := exec.Command(bin, db, "CREATE TABLE parts ("+strings.Join(cols, ", ")+")").CombinedOutput(); err != nil {
+		return nil, fmt.Errorf("sqlite3 create: %v: %s", err, out)
+	}
+	run := func(args ...string) (time.Duration, float64, error) {
+		cmd := exec.Command(bin, append([]string{db, "-cmd", "PRAGMA journal_mode=WAL", "-cmd", "PRAGMA synchronous=NORMAL", "-cmd", "PRAGMA cache_size=-65536"}, args...)...)
+		t0 := time.Now()
+		out, err := cmd.CombinedOutput()
+		d := time.Since(t0)
+		if err != nil {
+			return 0, 0, fmt.Errorf("sqlite3 %v: %v: %s", args, err, out)
+		}
+		var rss float64
+		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
+			rss = float64(ru.Maxrss) / 1024
+		}
+		return d, rss, nil
+	}
+	imp, rss, err := run(".import --csv --skip 1 " + csvPath(dir) + " parts")
+	if err != nil {
+		return nil, err
+	}
+	fixup, _, err := run("UPDATE parts SET " + strings.Join(fix, ", "))
+	if err != nil {
+		return nil, err
+	}
+	if _, _, err := run("CREATE INDEX p_kind ON parts(kind, vds, rdson); CREATE INDEX p_vrrm ON parts(kind, vrrm); CREATE INDEX p_mpn ON parts(mpn COLLATE NOCASE); CREATE INDEX p_mfr ON parts(mfr, mpn);"); err != nil {
+		return nil, err
+	}
+	return results{"sqlite3_import_s": imp.Seconds(), "sqlite3_fixup_s": fixup.Seconds(), "sqlite3_peak_mb": rss}, nil
+}
+
+// phaseBleve indexes mfr, mpn, desc and package of every CSV row into a
+// new bleve index with the default mapping, in batches of 10,000.
+func phaseBleve(dir string) (results, error) {
+	f, err := os.Open(csvPath(dir))
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	path := filepath.Join(dir, "raw.bleve")
+	os.RemoveAll(path)
+	t0 := time.Now()
+	ix, err := bleve.New(path, bleve.NewIndexMapping())
+	if err != nil {
+		return nil, err
+	}
+	r := csv.NewReader(bufio.NewReaderSize(f, 1<<16))
+	r.ReuseRecord = true
+	header, err := r.Read()
+	if err != nil {
+		return nil, err
+	}
+	want := []string{"mfr", "mpn", "desc", "package"}
+	at := make([]int, len(want))
+	for i, w := range want {
+		at[i] = -1
+		for j, h := range header {
+			if h == w {
+				at[i] = j
+			}
+		}
+		if at[i] < 0 {
+			return nil, fmt.Errorf("no %s column", w)
+		}
+	}
+	b := ix.NewBatch()
+	n := 0
+	for {
+		rec, err := r.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, err
+		}
+		doc := make(map[string]any, len(want))
+		for i, w := range want {
+			doc[w] = rec[at[i]]
+		}
+		if err := b.Index(strconv.Itoa(n), doc); err != nil {
+			return nil, err
+		}
+		n++
+		if b.Size() >= 10000 {
+			if err := ix.Batch(b); err != nil {
+				return nil, err
+			}
+			b.Reset()
+		}
+	}
+	if b.Size() > 0 {
+		if err := ix.Batch(b); err != nil {
+			return nil, err
+		}
+	}
+	if err := ix.Close(); err != nil {
+		return nil, err
+	}
+	return results{"bleve_s": time.Since(t0).Seconds(), "bleve_docs": float64(n)}, nil
+}
+
+func phaseXLSX(ctx context.Context, dir string) (results, error) {
+	path := filepath.Join(dir, "xlsx.db")
+	os.Remove(path)
+	os.RemoveAll(path + ".bleve")
+	st, err := catalog.Open(ctx, path)
+	if err != nil {
+		return nil, err
+	}
+	defer st.Close()
+	t0 := time.Now()
+	sum, err := importers.ImportFile(ctx, st, xlsxPath(dir), importers.Options{Source: "synth-xlsx"})
+	if err != nil {
+		return nil, err
+	}
+	if sum.Rejected != 0 {
+		return nil, fmt.Errorf("%d XLSX rows rejected, first: %+v", sum.Rejected, sum.Rejects[0])
+	}
+	return results{"xlsx_s": time.Since(t0).Seconds(), "xlsx_added": float64(sum.Added)}, nil
+}
+
+// findQuery is one query of the find comparison: through the store and,
+// when sql is set, in the sqlite3 shell on its typed table.
+type findQuery struct {
+	name string
+	q    func(prefix string) catalog.Query
+	sql  func(prefix string) string
+}
+
+var findQueries = []findQuery{
+	{"param-selective", func(string) catalog.Query {
+		return catalog.Query{Kind: catalog.MOSFET, Conds: []catalog.Cond{{Field: "vds", Op: ">=", Num: 100}, {Field: "rdson", Op: "<=", Num: 0.01}}, Limit: 50}
+	}, func(string) string {
+		return `SELECT * FROM parts WHERE kind = 'mosfet' AND vds >= 100 AND rdson <= 0.01 ORDER BY mfr, mpn LIMIT 50;`
+	}},
+	{"param-broad", func(string) catalog.Query {
+		return catalog.Query{Kind: catalog.Diode, Conds: []catalog.Cond{{Field: "vrrm", Op: ">=", Num: 40}}, Limit: 50}
+	}, func(string) string {
+		return `SELECT * FROM parts WHERE kind = 'diode' AND vrrm >= 40 ORDER BY mfr, mpn LIMIT 50;`
+	}},
+	{"text-term", func(string) catalog.Query { return catalog.Query{Text: "rectifier", Limit: 50} },
+		func(string) string {
+			return `SELECT * FROM parts WHERE desc LIKE '%rectifier%' ORDER BY mfr, mpn LIMIT 50;`
+		}},
+	{"text-mpn-prefix", func(p string) catalog.Query { return catalog.Query{Text: p, Limit: 50} },
+		func(p string) string {
+			return `SELECT * FROM parts WHERE mpn LIKE '` + p + `%' ORDER BY mfr, mpn LIMIT 50;`
+		}},
+	{"text-fuzzy", func(string) catalog.Query { return catalog.Query{Text: "shotky", Limit: 50} }, nil},
+}
+
+func quantiles(d []float64) (p50, p90 float64) {
+	sort.Float64s(d)
+	return d[len(d)/2], d[(len(d)*9)/10]
+}
+
+var runTime = regexp.MustCompile(`Run Time: real ([0-9.]+)`)
+
+func phaseFind(ctx context.Context, dir string, rows int, seed uint64, reps int) (results, error) {
+	st, err := catalog.Open(ctx, catPath(dir))
+	if err != nil {
+		return nil, err
+	}
+	defer st.Close()
+	mpn := synth.New(seed).Part(rows / 8).MPN
+	prefix := mpn[:len(mpn)-2]
+	res := results{}
+	// The first text search opens the index: time it apart.
+	t0 := time.Now()
+	if _, err := st.Search(ctx, catalog.Query{Text: "diode", Limit: 1}); err != nil {
+		return nil, err
+	}
+	res["find_open_s"] = time.Since(t0).Seconds()
+	for _, fq := range findQueries {
+		var ds []float64
+		var hits int
+		for i := 0; i < reps; i++ {
+			t := time.Now()
+			r, err := st.Search(ctx, fq.q(prefix))
+			if err != nil {
+				return nil, fmt.Errorf("%s: %w", fq.name, err)
+			}
+			ds = append(ds, time.Since(t).Seconds())
+			hits = len(r.Parts)
+			if r.Fallback {
+				return nil, fmt.Errorf("%s: the text index was not used", fq.name)
+			}
+		}
+		res["find_"+fq.name+"_p50"], res["find_"+fq.name+"_p90"] = quantiles(ds)
+		res["find_"+fq.name+"_n"] = float64(hits)
+	}
+	bin, err := exec.LookPath("sqlite3")
+	if err != nil {
+		return res, nil
+	}
+	for _, fq := range findQueries {
+		if fq.sql == nil {
+			continue
+		}
+		script := ".timer on\n" + strings.Repeat(fq.sql(prefix)+"\n", reps)
+		cmd := exec.Command(bin, shellDB(dir))
+		cmd.Stdin = strings.NewReader(script)
+		out, err := cmd.CombinedOutput()
+		if err != nil {
+			return nil, fmt.Errorf("sqlite3 %s: %v: %s", fq.name, err, out)
+		}
+		var ds []float64
+		for _, m := range runTime.FindAllSubmatch(out, -1) {
+			v, _ := strconv.ParseFloat(string(m[1]), 64)
+			ds = append(ds, v)
+		}
+		if len(ds) == 0 {
+			return nil, fmt.Errorf("sqlite3 %s: no timings in %q", fq.name, out)
+		}
+		res["sh_"+fq.name+"_p50"], res["sh_"+fq.name+"_p90"] = quantiles(ds)
+	}
+	return res, nil
+}
+
+// phasePick times topology.Pick on the store for every example spec, then
+// loads every part with its offers into memory once and times
+// topology.Evaluate over it (the plain in-memory scan of the same columns).
+func phasePick(ctx context.Context, dir string) (results, error) {
+	st, err := catalog.Open(ctx, catPath(dir))
+	if err != nil {
+		return nil, err
+	}
+	defer st.Close()
+	res := results{}
+	specs := map[string]*spec.Spec{}
+	for _, name := range seeddata.SpecNames() {
+		data, path, ok := seeddata.Spec(name)
+		if !ok {
+			return nil, fmt.Errorf("spec %s missing", name)
+		}
+		s, err := spec.Parse(path, data)
+		if err != nil {
+			return nil, err
+		}
+		specs[name] = s
+		t0 := time.Now()
+		if _, err := topology.Pick(ctx, st, s, topology.Options{}); err != nil {
+			return nil, fmt.Errorf("pick %s: %w", name, err)
+		}
+		res["pick_"+name+"_s"] = time.Since(t0).Seconds()
+	}
+	t0 := time.Now()
+	parts, err := st.Find(ctx, catalog.Query{Offers: true})
+	if err != nil {
+		return nil, err
+	}
+	cat := topology.NewCatalog(parts)
+	res["scan_load_s"] = time.Since(t0).Seconds()
+	for name, s := range specs {
+		t0 := time.Now()
+		topology.Evaluate(s, cat, topology.Options{})
+		res["scan_"+name+"_s"] = time.Since(t0).Seconds()
+	}
+	return res, nil
+}
