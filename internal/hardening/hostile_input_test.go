@@ -1,0 +1,202 @@
+package hardening
+
+import (
+	"archive/zip"
+	"bytes"
+	"compress/flate"
+	"context"
+
+	"errors"
+	"fmt"
+	"hash/crc32"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// Hostile and broken input through the binary: zip bombs and huge cells
+// under a stated address-space limit, a million columns, invalid UTF-8,
+// NaN/Inf/absurd magnitudes, symlinked and directory output paths, and
+// formula-looking text in every CSV the tool writes.
+
+// memLimitKiB is the address-space limit (ulimit -v) under which the
+// binary must refuse a zip bomb or a huge cell with a clear error.
+const memLimitKiB = 1 << 20 // 1 GiB
+
+// limitedCLI runs partsieve --db db args... under ulimit -v memLimitKiB
+// (Linux with bash only; skips elsewhere).
+func limitedCLI(t *testing.T, db string, args ...string) result {
+	t.Helper()
+	if runtime.GOOS != "linux" {
+		t.Skip("ulimit -v test on Linux only")
+	}
+	bash, err := exec.LookPath("bash")
+	if err != nil {
+		t.Skip("no bash for ulimit")
+	}
+	bin := partsieve(t)
+	script := fmt.Sprintf(`ulimit -v %d && exec "$0" "$@"`, memLimitKiB)
+	r, err := runProgram(bash, append([]string{"-c", script, bin, "--db", db}, args...))
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkNoPanic(t, args, r)
+	return r
+}
+
+// runProgram runs name args... like runBin, with the children's
+// environment and the hang timeout.
+func runProgram(name string, args []string) (result, error) {
+	ctx, cancel := context.WithTimeout(context.Background(), cliTimeout)
+	defer cancel()
+	cmd := exec.CommandContext(ctx, name, args...)
+	cmd.Env = cliEnv()
+	var out, errb strings.Builder
+	cmd.Stdout, cmd.Stderr = &out, &errb
+	start := time.Now()
+	err := cmd.Run()
+	r := result{stdout: out.String(), stderr: errb.String(), took: time.Since(start)}
+	if ctx.Err() != nil {
+		return r, fmt.Errorf("%s hung (killed after %v)\n%s", strings.Join(args, " "), cliTimeout, r)
+	}
+	if err != nil {
+		var ee *exec.ExitError
+		if !errors.As(err, &ee) {
+			return r, fmt.Errorf("running %s: %v", strings.Join(args, " "), err)
+		}
+		r.code = ee.ExitCode()
+	}
+	return r, nil
+}
+
+// flateRun returns the raw DEFLATE blocks of data, byte-aligned and not
+// final (a sync flush), so that copies can be concatenated: each run
+// refers back only to its own bytes.
+func flateRun(t *testing.T, data []byte, final bool) []byte {
+	t.Helper()
+	var buf bytes.Buffer
+	w, err := flate.NewWriter(&buf, flate.BestCompression)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := w.Write(data); err != nil {
+		t.Fatal(err)
+	}
+	if final {
+		err = w.Close()
+	} else {
+		err = w.Flush()
+	}
+	if err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
+// bombSheet builds the DEFLATE stream of a worksheet whose cell A2 holds
+// mib MiB of the letter A (the header row has mfr, mpn, desc), built from
+// a 1 MiB run repeated: 2 GiB packs to about 2 MB. It returns the stream,
+// the unpacked size and its CRC-32.
+func bombSheet(t *testing.T, mib int) (stream []byte, size uint64, crc uint32) {
+	t.Helper()
+	prefix := []byte(`<?xml version="1.0" encoding="UTF-8" standalone="yes"?>` +
+		`<worksheet xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main"><sheetData>` +
+		`<row r="1"><c r="A1" t="inlineStr"><is><t>mfr</t></is></c><c r="B1" t="inlineStr"><is><t>mpn</t></is></c><c r="C1" t="inlineStr"><is><t>desc</t></is></c></row>` +
+		`<row r="2"><c r="A2" t="inlineStr"><is><t>Brindle Semi</t></is></c><c r="B2" t="inlineStr"><is><t>BD-1</t></is></c><c r="C2" t="inlineStr"><is><t>`)
+	suffix := []byte(`</t></is></c></row></sheetData></worksheet>`)
+	chunk := bytes.Repeat([]byte("A"), 1<<20)
+	run := flateRun(t, chunk, false)
+	var buf bytes.Buffer
+	buf.Write(flateRun(t, prefix, false))
+	h := crc32.NewIEEE()
+	h.Write(prefix)
+	for range mib {
+		buf.Write(run)
+		h.Write(chunk)
+	}
+	buf.Write(flateRun(t, suffix, true))
+	h.Write(suffix)
+	return buf.Bytes(), uint64(len(prefix)) + uint64(mib)<<20 + uint64(len(suffix)), h.Sum32()
+}
+
+// writeBombBook writes a workbook made by excelize whose first sheet is
+// replaced by the given DEFLATE stream, declaring size as its unpacked size.
+func writeBombBook(t *testing.T, path string, stream []byte, size uint64, crc uint32) {
+	t.Helper()
+	f := excelize.NewFile()
+	if err := f.SetCellStr("Sheet1", "A1", "placeholder"); err != nil {
+		t.Fatal(err)
+	}
+	var src bytes.Buffer
+	if err := f.Write(&src); err != nil {
+		t.Fatal(err)
+	}
+	zr, err := zip.NewReader(bytes.NewReader(src.Bytes()), int64(src.Len()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	out, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer out.Close()
+	zw := zip.NewWriter(out)
+	replaced := false
+	for _, zf := range zr.File {
+		if zf.Name != "xl/worksheets/sheet1.xml" {
+			if err := zw.Copy(zf); err != nil {
+				t.Fatal(err)
+			}
+			continue
+		}
+		replaced = true
+		w, err := zw.CreateRaw(&zip.FileHeader{Name: zf.Name, Method: zip.Deflate, CRC32: crc,
+			CompressedSize64: uint64(len(stream)), UncompressedSize64: size})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := w.Write(stream); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if !replaced {
+		t.Fatal("excelize wrote no xl/worksheets/sheet1.xml")
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestHostileZipBomb: a 2 MB workbook whose sheet unpacks to 2 GiB, once
+// declaring its true size and once declaring 1 MiB, is refused with exit
+// status 1 and a message naming the file, under a 1 GiB address-space limit.
+func TestHostileZipBomb(t *testing.T) {
+	dir := t.TempDir()
+	stream, size, crc := bombSheet(t, 2048)
+	t.Logf("bomb: %d bytes packed, %d unpacked (ratio %.0f)", len(stream), size, float64(size)/float64(len(stream)))
+	for _, tc := range []struct {
+		name     string
+		declared uint64
+		want     string
+	}{
+		{"true size", size, "too large"},
+		{"declares 1 MiB", 1 << 20, ""},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			book := filepath.Join(dir, strings.ReplaceAll(tc.name, " ", "-")+".xlsx")
+			writeBombBook(t, book, stream, tc.declared, crc)
+			db := filepath.Join(dir, strings.ReplaceAll(tc.name, " ", "-")+".db")
+			r := limitedCLI(t, db, "import", book)
+			t.Logf("%s", r)
+			if r.code != 1 || !strings.Contains(r.stderr, filepath.Base(book)) || !strings.Contains(r.stderr, tc.want) {
+				t.Errorf("want exit 1 and an error naming %s (%q):\n%s", filepath.Base(book), tc.want, r)
+			}
+		})
+	}
+}
