@@ -65,7 +65,7 @@ func openXLSX(name string, r io.ReaderAt, size int64) (book Book, err error) {
 	if b.parts, err = b.sheetParts(wbPath); err != nil {
 		return nil, err
 	}
-	if err := b.verify("xl/sharedStrings.xml"); err != nil {
+	if err := b.checkText("xl/sharedStrings.xml", ""); err != nil {
 		return nil, err
 	}
 	f, err := excelize.OpenReader(io.NewSectionReader(r, 0, size), excelize.Options{
@@ -144,23 +144,6 @@ func (b *xlsxBook) readPart(part string) ([]byte, error) {
 		return nil, b.damaged(fmt.Errorf("%s: %w", part, err))
 	}
 	return data, nil
-}
-
-// verify unpacks a part, if present, only to check its CRC.
-func (b *xlsxBook) verify(part string) error {
-	zf := b.open(part)
-	if zf == nil {
-		return nil
-	}
-	rc, err := zf.Open()
-	if err == nil {
-		_, err = io.Copy(io.Discard, rc)
-		rc.Close()
-	}
-	if err != nil {
-		return b.damaged(fmt.Errorf("%s: %w", part, err))
-	}
-	return nil
 }
 
 // opcRels is an OPC relationships part.
@@ -320,6 +303,9 @@ func (b *xlsxBook) Table(sheet string) (t Table, err error) {
 	defer recoverXLSX(b.name, name, 0, &err)
 	var merges []mergeRange
 	if part, ok := b.parts[name]; ok {
+		if err := b.checkText(part, name); err != nil {
+			return nil, err
+		}
 		if merges, err = b.scanMerges(name, part); err != nil {
 			return nil, err
 		}

@@ -200,3 +200,45 @@ func TestHostileZipBomb(t *testing.T) {
 		})
 	}
 }
+
+// TestHostileHugeCell: a single 100 MiB cell. In a CSV file it is longer
+// than the 16 MiB record limit: refused with exit 1, naming the file and
+// the row. In a workbook (100 MiB unpacked, under the 1 GiB unpacked
+// limit) it is longer than the 32 MiB cell limit: refused likewise, where
+// excelize alone ran out of memory under the 1 GiB address-space limit.
+func TestHostileHugeCell(t *testing.T) {
+	dir := t.TempDir()
+	t.Run("csv", func(t *testing.T) {
+		sheet := filepath.Join(dir, "huge-cell.csv")
+		f, err := os.Create(sheet)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fmt.Fprint(f, "kind,mfr,mpn,desc,vrrm\ndiode,Brindle Semi,BD-1,ok,40\ndiode,Brindle Semi,BD-2,")
+		chunk := bytes.Repeat([]byte("A"), 1<<20)
+		for range 100 {
+			if _, err := f.Write(chunk); err != nil {
+				t.Fatal(err)
+			}
+		}
+		fmt.Fprint(f, ",40\n")
+		if err := f.Close(); err != nil {
+			t.Fatal(err)
+		}
+		r := limitedCLI(t, filepath.Join(dir, "csv.db"), "import", sheet)
+		t.Logf("%s", r)
+		if r.code != 1 || !strings.Contains(r.stderr, "huge-cell.csv") || !strings.Contains(r.stderr, "row 3") || !strings.Contains(r.stderr, "longer than") {
+			t.Errorf("want exit 1 and an error naming huge-cell.csv, row 3 and the record limit:\n%s", r)
+		}
+	})
+	t.Run("xlsx", func(t *testing.T) {
+		stream, size, crc := bombSheet(t, 100)
+		book := filepath.Join(dir, "huge-cell.xlsx")
+		writeBombBook(t, book, stream, size, crc)
+		r := limitedCLI(t, filepath.Join(dir, "xlsx.db"), "import", book)
+		t.Logf("%s", r)
+		if r.code != 1 || !strings.Contains(r.stderr, "huge-cell.xlsx") || !strings.Contains(r.stderr, "row 2") || !strings.Contains(r.stderr, "too large") {
+			t.Errorf("want exit 1 and an error naming huge-cell.xlsx, row 2 and the cell limit:\n%s", r)
+		}
+	})
+}

@@ -1,0 +1,42 @@
+package importers
+
+import (
+	"errors"
+	"strings"
+	"testing"
+	"testing/iotest"
+)
+
+func TestLongestText(t *testing.T) {
+	long := strings.Repeat("x", 100)
+	for _, tc := range []struct {
+		name, xml string
+		row       int
+		tooLong   bool
+	}{
+		{"short cells", `<sheetData><row r="1"><c><v>12</v></c></row><row r="2"><c><is><t>abc</t></is></c></row></sheetData>`, 2, false},
+		{"long cell in row 2", `<sheetData><row r="1"><c><v>1</v></c></row><row r="2"><c><is><t>` + long + `</t></is></c></row></sheetData>`, 2, true},
+		{"long cell of > signs", `<row r="1"><c><is><t>` + strings.Repeat(">", 100) + `</t></is></c></row>`, 1, true},
+		{"long attribute", `<row r="1"><c r="` + long + `"/></row>`, 1, true},
+		{"CDATA hiding markup", `<row r="1"><c><is><t><![CDATA[` + strings.Repeat("<a>xxxxx", 12) + `]]></t></is></c></row>`, 1, true},
+		{"short CDATA", `<row r="1"><c><is><t><![CDATA[<a>]]></t></is></c></row><row r="2"/>`, 2, false},
+		{"rows element is not a row", `<rows><rowBreaks/></rows>`, 0, false},
+		{"empty", ``, 0, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			for _, r := range []func(string) *strings.Reader{strings.NewReader} {
+				row, err := longestText(iotest.OneByteReader(r(tc.xml)), 64)
+				if tc.tooLong != errors.Is(err, errLongText) || (!tc.tooLong && err != nil) {
+					t.Fatalf("err %v, want too long %v", err, tc.tooLong)
+				}
+				if row != tc.row {
+					t.Errorf("row %d, want %d", row, tc.row)
+				}
+				row2, err2 := longestText(r(tc.xml), 64)
+				if row2 != row || errors.Is(err2, errLongText) != errors.Is(err, errLongText) {
+					t.Errorf("whole reads: row %d err %v; byte reads: row %d err %v", row2, err2, row, err)
+				}
+			}
+		})
+	}
+}
