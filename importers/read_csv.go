@@ -16,6 +16,11 @@ import (
 // rest of the file one field.
 var MaxRecordBytes int64 = 16 << 20
 
+// MaxColumns bounds the non-empty columns of one CSV record: 16384 is the
+// most an XLSX worksheet holds (column XFD). A wider record is refused with
+// ErrTooLarge naming its row (trailing empty cells do not count).
+var MaxColumns = 16384
+
 // sniffRecords is how many records the delimiter sniffer looks at.
 const sniffRecords = 50
 
@@ -188,6 +193,11 @@ func (t *textTable) Next() ([]string, int, error) {
 		}
 		if blank {
 			continue
+		}
+		if n > MaxColumns {
+			t.err = &FileError{File: t.book.name, Row: line, Kind: ErrTooLarge,
+				Reason: fmt.Sprintf("too large: %d columns, more than %d (the most a spreadsheet holds)", n, MaxColumns)}
+			return nil, 0, t.err
 		}
 		return t.copyOut(rec[:n]), line, nil
 	}

@@ -40,3 +40,25 @@ func TestLongestText(t *testing.T) {
 		})
 	}
 }
+
+// TestReadTooManyColumns: a CSV record wider than MaxColumns is refused
+// naming its row; trailing empty cells do not count.
+func TestReadTooManyColumns(t *testing.T) {
+	wide := "mfr,mpn\nA,B" + strings.Repeat(",x", MaxColumns) + "\n"
+	b, err := readOpen("wide.csv", []byte(wide))
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = readTable(b, "")
+	readWantErr(t, err, "wide.csv", ErrTooLarge)
+	if err == nil || !strings.Contains(err.Error(), "wide.csv, row 2: too large: 16386 columns") {
+		t.Errorf("error %v", err)
+	}
+	empty := "mfr,mpn\nA,B" + strings.Repeat(",", 2*MaxColumns) + "\n"
+	if b, err = readOpen("empty.csv", []byte(empty)); err == nil {
+		_, err = readTable(b, "")
+	}
+	if err != nil {
+		t.Errorf("trailing empty cells: %v", err)
+	}
+}
