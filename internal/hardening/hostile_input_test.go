@@ -16,6 +16,7 @@ import (
 	"strings"
 	"testing"
 	"time"
+	"unicode/utf8"
 
 	"github.com/xuri/excelize/v2"
 )
@@ -241,4 +242,65 @@ func TestHostileHugeCell(t *testing.T) {
 			t.Errorf("want exit 1 and an error naming huge-cell.xlsx, row 2 and the cell limit:\n%s", r)
 		}
 	})
+}
+
+// writeFile writes data to dir/name and returns the path.
+func writeFile(t *testing.T, dir, name string, data []byte) string {
+	t.Helper()
+	p := filepath.Join(dir, name)
+	if err := os.WriteFile(p, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestHostileMillionColumns: a header and a data row of a million columns
+// are refused at once (more than 16384 columns), naming the row; a million
+// trailing empty cells are ignored.
+func TestHostileMillionColumns(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("mfr,mpn,vrrm")
+	for i := range 1_000_000 {
+		fmt.Fprintf(&b, ",note%d", i)
+	}
+	b.WriteString("\nBrindle Semi,BD-9,40\n")
+	wideHead := writeFile(t, dir, "wide-header.csv", []byte(b.String()))
+	wideRow := writeFile(t, dir, "wide-row.csv", []byte("mfr,mpn,kind,vrrm\nBrindle Semi,BD-9,diode,40"+strings.Repeat(",x", 1_000_000)+"\n"))
+	empties := writeFile(t, dir, "empties.csv", []byte("mfr,mpn,kind,vrrm\nBrindle Semi,BD-9,diode,40"+strings.Repeat(",", 1_000_000)+"\n"))
+	for _, tc := range []struct {
+		file, want string
+		code       int
+	}{
+		{wideHead, "wide-header.csv, row 1: too large: 1000003 columns", 1},
+		{wideRow, "wide-row.csv, row 2: too large: 1000004 columns", 1},
+		{empties, "added 1", 0},
+	} {
+		r := cli(t, filepath.Join(dir, "c.db"), "import", tc.file)
+		if r.code != tc.code || !strings.Contains(r.stderr+r.stdout, tc.want) {
+			t.Errorf("import %s: want exit %d and %q:\n%s", filepath.Base(tc.file), tc.code, tc.want, r)
+		}
+	}
+}
+
+// TestHostileInvalidUTF8: bytes that are not UTF-8 in headers and cells
+// are read as Windows-1252 (the file is imported, nothing panics) and
+// everything the tool prints back is valid UTF-8.
+func TestHostileInvalidUTF8(t *testing.T) {
+	dir := t.TempDir()
+	db := filepath.Join(dir, "c.db")
+	sheet := writeFile(t, dir, "latin.csv", []byte("kind,mfr,mpn,desc\xff,vrrm (V)\x80,ifav\ndiode,Brindle Semi,BD-\xe96,r\xe9sum\xe9 \x81\x8d\x90\x9d \xc3\x28,40,3\n"))
+	r := cli(t, db, "import", sheet)
+	if r.code != 0 || !strings.Contains(r.stdout, "added 1") {
+		t.Fatalf("import:\n%s", r)
+	}
+	for _, args := range [][]string{{"find", "--format", "csv", "--where", "mfr = Brindle Semi"}, {"find", "--format", "json", "--where", "mfr = Brindle Semi"}, {"find", "résumé"}, {"find", "--where", "desc\xff = x"}} {
+		r := cli(t, db, args...)
+		if !utf8.ValidString(r.stdout) || !utf8.ValidString(r.stderr) {
+			t.Errorf("%q printed invalid UTF-8:\n%s", args, r)
+		}
+		if args[1] == "--format" && !strings.Contains(r.stdout, "BD-é6") {
+			t.Errorf("%q: BD-é6 (0xE9 read as Windows-1252) missing:\n%s", args, r)
+		}
+	}
 }
