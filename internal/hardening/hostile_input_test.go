@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"compress/flate"
 	"context"
+	"encoding/csv"
 
 	"errors"
 	"fmt"
@@ -303,4 +304,83 @@ func TestHostileInvalidUTF8(t *testing.T) {
 			t.Errorf("%q: BD-é6 (0xE9 read as Windows-1252) missing:\n%s", args, r)
 		}
 	}
+}
+
+// absurd are values no rating can take: refused with a clear message in a
+// cell, in --where and in a spec.
+var absurd = []struct{ text, want string }{
+	{"nan", "NaN and infinity are not values"},
+	{"NaN", "NaN and infinity are not values"},
+	{"inf", "NaN and infinity are not values"},
+	{"-Inf", "NaN and infinity are not values"},
+	{"+infinity", "NaN and infinity are not values"},
+	{"1e300", "beyond 1e15"},
+	{"-1e300", "beyond 1e15"},
+	{"1e-300", "below 1e-30"},
+}
+
+// TestHostileNumbers: NaN, infinities and absurd magnitudes are refused in
+// value cells (the row is rejected naming row, column and reason), in
+// --where (exit 2) and in spec values (exit 1, naming the file line).
+func TestHostileNumbers(t *testing.T) {
+	dir := t.TempDir()
+	db := filepath.Join(dir, "c.db")
+	var b strings.Builder
+	b.WriteString("kind,mfr,mpn,vrrm,ifav\n")
+	for i, a := range absurd {
+		fmt.Fprintf(&b, "diode,Brindle Semi,BD-%d,%s V,3\n", i, a.text)
+	}
+	b.WriteString("diode,Brindle Semi,BD-ok,40,3\n")
+	rejects := filepath.Join(dir, "rejects.csv")
+	r := cli(t, db, "import", "--rejects", rejects, writeFile(t, dir, "absurd.csv", []byte(b.String())))
+	if r.code != 3 || !strings.Contains(r.stdout, fmt.Sprintf("added 1, updated 0, unchanged 0, rejected %d", len(absurd))) {
+		t.Fatalf("import:\n%s", r)
+	}
+	recs := readCSVFile(t, rejects)
+	if len(recs) != len(absurd)+1 {
+		t.Fatalf("rejects file has %d records, want %d", len(recs), len(absurd)+1)
+	}
+	for i, a := range absurd {
+		rec := recs[i+1] // file, sheet, row, column, raw, reason
+		if rec[2] != fmt.Sprint(i+2) || rec[3] != "vrrm" || !strings.Contains(rec[5], a.want) {
+			t.Errorf("reject of %q: %q, want row %d, column vrrm, %q", a.text, rec, i+2, a.want)
+		}
+	}
+	for _, a := range absurd {
+		r := cli(t, db, "find", "--where", "vrrm > "+a.text+" V")
+		if r.code != 2 || !strings.Contains(r.stderr, a.want) {
+			t.Errorf("--where vrrm > %s V: want exit 2 and %q:\n%s", a.text, a.want, r)
+		}
+	}
+	spec, err := os.ReadFile(filepath.Join("..", "..", "seeddata", "specs", "handheld-2s-liion.toml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, a := range absurd {
+		text := strings.Replace(string(spec), `i_max = "1.5 A"`, fmt.Sprintf(`i_max = "%s A"`, a.text), 1)
+		if text == string(spec) {
+			t.Fatal(`example spec has no i_max = "1.5 A"`)
+		}
+		p := writeFile(t, dir, fmt.Sprintf("spec%d.toml", i), []byte(text))
+		r := cli(t, db, "pick", p)
+		if r.code != 1 || !strings.Contains(r.stderr, fmt.Sprintf("spec%d.toml:", i)) || !strings.Contains(r.stderr, "load.i_max") || !strings.Contains(r.stderr, a.want) {
+			t.Errorf("spec with i_max %s A: want exit 1 naming the file, line, key and %q:\n%s", a.text, a.want, r)
+		}
+	}
+}
+
+func readCSVFile(t *testing.T, path string) [][]string {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	cr := csv.NewReader(f)
+	cr.FieldsPerRecord = -1
+	recs, err := cr.ReadAll()
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return recs
 }
