@@ -384,3 +384,92 @@ func readCSVFile(t *testing.T, path string) [][]string {
 	}
 	return recs
 }
+
+// TestHostileOutputPaths: the files written by import --rejects, shortlist
+// --out (CSV and XLSX) and pick --report. A symbolic link is refused and
+// its target left alone; a directory is refused; a path through ../ is
+// written exactly where it resolves; a missing directory is an error. A
+// refused write leaves no file and no temporary file behind.
+func TestHostileOutputPaths(t *testing.T) {
+	if runtime.GOOS == "windows" {
+		t.Skip("symbolic links need privileges on Windows")
+	}
+	dir := t.TempDir()
+	db := filepath.Join(dir, "c.db")
+	sheet := writeFile(t, dir, "sheet.csv", []byte("kind,mfr,mpn,vrrm\ndiode,Brindle Semi,BD-1,40\ndiode,Brindle Semi,BD-2,nan\n"))
+	if r := cli(t, db, "import", sheet); r.code != 3 {
+		t.Fatalf("import:\n%s", r)
+	}
+	commands := []struct {
+		name string
+		args func(out string) []string
+		ok   int // exit status of a successful run
+	}{
+		{"import --rejects", func(out string) []string { return []string{"import", "--rejects", out, sheet} }, 3},
+		{"shortlist --out csv", func(out string) []string { return []string{"shortlist", "vehicle-12v-accessory", "--out", out} }, 0},
+		{"shortlist --out xlsx", func(out string) []string { return []string{"shortlist", "vehicle-12v-accessory", "--out", out} }, 0},
+		{"pick --report", func(out string) []string { return []string{"pick", "vehicle-12v-accessory", "--report", out} }, 0},
+	}
+	ext := map[string]string{"import --rejects": ".csv", "shortlist --out csv": ".csv", "shortlist --out xlsx": ".xlsx", "pick --report": ".html"}
+	for _, c := range commands {
+		t.Run(c.name, func(t *testing.T) {
+			work := filepath.Join(dir, strings.NewReplacer(" ", "_", "-", "").Replace(c.name))
+			sub := filepath.Join(work, "sub")
+			if err := os.MkdirAll(sub, 0o755); err != nil {
+				t.Fatal(err)
+			}
+			victim := writeFile(t, work, "victim.txt", []byte("keep me"))
+			link := filepath.Join(sub, "out"+ext[c.name])
+			if err := os.Symlink(victim, link); err != nil {
+				t.Fatal(err)
+			}
+			r := cli(t, db, c.args(link)...)
+			if r.code != 1 || !strings.Contains(r.stderr, "symbolic link") {
+				t.Errorf("symlink: want exit 1 and a message saying it is a symbolic link:\n%s", r)
+			}
+			if data, err := os.ReadFile(victim); err != nil || string(data) != "keep me" {
+				t.Errorf("symlink target changed: %q %v", data, err)
+			}
+			if fi, err := os.Lstat(link); err != nil || fi.Mode()&os.ModeSymlink == 0 {
+				t.Errorf("the link was replaced: %v %v", fi, err)
+			}
+			os.Remove(link)
+
+			asDir := filepath.Join(sub, "dir"+ext[c.name])
+			if err := os.Mkdir(asDir, 0o755); err != nil {
+				t.Fatal(err)
+			}
+			r = cli(t, db, c.args(asDir)...)
+			if r.code != 1 || !strings.Contains(r.stderr, "is a directory") {
+				t.Errorf("directory: want exit 1 and a message saying it is a directory:\n%s", r)
+			}
+			os.Remove(asDir)
+
+			r = cli(t, db, c.args(filepath.Join(work, "missing", "out"+ext[c.name]))...)
+			if r.code != 1 || !strings.Contains(r.stderr, "missing") {
+				t.Errorf("missing directory: want exit 1 naming the path:\n%s", r)
+			}
+
+			// written out by hand: filepath.Join would clean the ../ away
+			dotdot := sub + string(filepath.Separator) + ".." + string(filepath.Separator) + "up" + ext[c.name]
+			r = cli(t, db, c.args(dotdot)...)
+			if r.code != c.ok {
+				t.Errorf("../ path: want exit %d:\n%s", c.ok, r)
+			}
+			if fi, err := os.Stat(filepath.Join(work, "up"+ext[c.name])); err != nil || fi.Size() == 0 {
+				t.Errorf("../ path not written where it resolves: %v", err)
+			}
+			for _, d := range []string{work, sub} {
+				ents, err := os.ReadDir(d)
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, e := range ents {
+					if n := e.Name(); n != "sub" && n != "victim.txt" && n != "up"+ext[c.name] {
+						t.Errorf("left behind in %s: %s", d, n)
+					}
+				}
+			}
+		})
+	}
+}
