@@ -14,6 +14,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"runtime"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -471,5 +472,73 @@ func TestHostileOutputPaths(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// risky reports whether a spreadsheet program would evaluate cell as a
+// formula: it starts with = + - @, tab or CR and is not a plain number.
+func risky(cell string) bool {
+	if cell == "" || !strings.ContainsRune("=+-@\t\r", rune(cell[0])) {
+		return false
+	}
+	_, err := strconv.ParseFloat(cell, 64)
+	return err != nil
+}
+
+// TestHostileFormulaExports: formula-looking text from an imported sheet
+// comes out neutralised (a leading apostrophe) in the rejects CSV and in
+// find --format csv; negative numbers stay numbers. (The shortlist CSV and
+// workbook are checked in cmd/partsieve TestShortlistFiles, the HTML report
+// in query/report.)
+func TestHostileFormulaExports(t *testing.T) {
+	dir := t.TempDir()
+	db := filepath.Join(dir, "c.db")
+	hostile := []string{`=HYPERLINK("http://attacker.invalid/","x")`, "@SUM(A1:A9)", "+cmd|' /C calc'!A0", "-2+3+cmd|' /C calc'!A0", "=1+2"}
+	var sheet strings.Builder
+	cw := csv.NewWriter(&sheet)
+	cw.WriteAll([][]string{
+		{"kind", "mfr", "mpn", "desc", "package", "supplier", "sku", "stock", "1+", "vrrm", "ifav"},
+		{"diode", hostile[0], hostile[1], hostile[2], hostile[3], hostile[4], "\t=2+3", "10", "0.1", "40", "3"},
+		{"diode", "Brindle Semi", "BD-2", "x", "y", "Foo", "s1", "5", "0.2", hostile[0], "3"},
+		{"diode", "Brindle Semi", "BD-3", "x", "y", "Foo", "s1", "5", "0.2", "40", hostile[1]},
+		{"diode", "Brindle Semi", "BD-4", "x", "y", "Foo", "s1", "5", "0.2", hostile[3], "3"},
+	})
+	if err := cw.Error(); err != nil {
+		t.Fatal(err)
+	}
+	rejects := filepath.Join(dir, "rejects.csv")
+	r := cli(t, db, "import", "--rejects", rejects, writeFile(t, dir, "hostile.csv", []byte(sheet.String())))
+	if r.code != 3 || !strings.Contains(r.stdout, "added 1") || !strings.Contains(r.stdout, "rejected 3") {
+		t.Fatalf("import:\n%s", r)
+	}
+	rej := readCSVFile(t, rejects)
+	find := cli(t, db, "find", "--format", "csv", "--where", "vrrm = 40 V", "--where", "ifav = 3 A")
+	if find.code != 0 {
+		t.Fatalf("find:\n%s", find)
+	}
+	cr := csv.NewReader(strings.NewReader(find.stdout))
+	found, err := cr.ReadAll()
+	if err != nil {
+		t.Fatalf("find --format csv: %v\n%s", err, find.stdout)
+	}
+	for name, recs := range map[string][][]string{"rejects CSV": rej, "find --format csv": found} {
+		seen := map[string]bool{}
+		for _, rec := range recs {
+			for _, cell := range rec {
+				if risky(cell) {
+					t.Errorf("%s: cell %q would be evaluated as a formula", name, cell)
+				}
+				seen[cell] = true
+			}
+		}
+		want := []string{hostile[0], hostile[1], hostile[3]} // the refused raw cells
+		if name == "find --format csv" {
+			want = hostile[:4] // mfr, mpn, desc, package (the supplier is not a column)
+		}
+		for _, h := range want {
+			if !seen["'"+h] {
+				t.Errorf("%s: %q not written as the neutralised text '%s:\n%q", name, h, h, recs)
+			}
+		}
 	}
 }
