@@ -1,7 +1,9 @@
 package importers
 
 import (
+	"bytes"
 	"errors"
+	"io"
 	"strings"
 	"testing"
 	"testing/iotest"
@@ -61,4 +63,60 @@ func TestReadTooManyColumns(t *testing.T) {
 	if err != nil {
 		t.Errorf("trailing empty cells: %v", err)
 	}
+}
+
+// naiveLongestText is longestText written plainly on a whole buffer, the
+// reference for FuzzLongestText.
+func naiveLongestText(data []byte, max int64) (int, bool) {
+	row, run, cdata := 0, int64(0), false
+	for i := 0; i < len(data); i++ {
+		run++
+		if run > max {
+			return row, true
+		}
+		if cdata {
+			if data[i] == '>' && i >= 2 && data[i-1] == ']' && data[i-2] == ']' && run >= 3+8 {
+				cdata = false
+			}
+			continue
+		}
+		if data[i] != '<' {
+			continue
+		}
+		rest := data[i+1:]
+		switch {
+		case len(rest) >= 8 && string(rest[:8]) == "![CDATA[":
+			if run+8 > max {
+				return row, true
+			}
+			cdata, run, i = true, run+8, i+8
+			continue
+		case len(rest) >= 4 && string(rest[:3]) == "row" && isTagNameEnd(rest[3]):
+			row++
+		}
+		run = 0
+	}
+	return row, false
+}
+
+// FuzzLongestText: the streaming scan agrees with the plain one, whatever
+// the bytes and however the reader splits them.
+func FuzzLongestText(f *testing.F) {
+	for _, s := range []string{"", "<row r=\"1\"><c><v>1</v></c></row>", "<![CDATA[<<<>>>]]>xx", "<row><![CDATA[]]]]>", "]]><![CDATA[", "<row\t/><row>" + strings.Repeat("a", 40)} {
+		f.Add([]byte(s), uint8(16), false)
+	}
+	f.Fuzz(func(t *testing.T, data []byte, max uint8, oneByte bool) {
+		var r io.Reader = bytes.NewReader(data)
+		if oneByte {
+			r = iotest.OneByteReader(r)
+		}
+		row, err := longestText(r, int64(max))
+		if err != nil && !errors.Is(err, errLongText) {
+			t.Fatal(err)
+		}
+		wantRow, wantLong := naiveLongestText(data, int64(max))
+		if errors.Is(err, errLongText) != wantLong || row != wantRow {
+			t.Fatalf("longestText = row %d, %v; plain scan row %d, too long %v", row, err, wantRow, wantLong)
+		}
+	})
 }
