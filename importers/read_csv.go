@@ -16,9 +16,9 @@ import (
 // rest of the file one field.
 var MaxRecordBytes int64 = 16 << 20
 
-// MaxColumns bounds the non-empty columns of one CSV record: 16384 is the
-// most an XLSX worksheet holds (column XFD). A wider record is refused with
-// ErrTooLarge naming its row (trailing empty cells do not count).
+// MaxColumns bounds the columns of one CSV record or XLSX row, up to the
+// last non-empty cell: 16384 is the most an XLSX worksheet holds (column
+// XFD). A wider row is refused with ErrTooLarge naming it.
 var MaxColumns = 16384
 
 // sniffRecords is how many records the delimiter sniffer looks at.

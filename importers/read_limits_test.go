@@ -120,3 +120,29 @@ func FuzzLongestText(f *testing.F) {
 		}
 	})
 }
+
+// TestReadXLSXTooManyColumns: cells without a reference are placed one
+// after another; a row that runs past MaxColumns is refused naming it.
+func TestReadXLSXTooManyColumns(t *testing.T) {
+	defer func(old int) { MaxColumns = old }(MaxColumns)
+	MaxColumns = 100
+	data := readRewrite(t, readFixture(t, "excelize.xlsx"), func(name string, c []byte) []byte {
+		if name == "xl/worksheets/sheet1.xml" {
+			i := bytes.Index(c, []byte("<sheetData>")) + len("<sheetData>")
+			j := bytes.Index(c, []byte("</sheetData>"))
+			row := `<row r="1"><c t="inlineStr"><is><t>mfr</t></is></c>` + strings.Repeat(`<c t="inlineStr"><is><t>n</t></is></c>`, 100) + `</row>`
+			return append(append(append([]byte(nil), c[:i]...), row...), c[j:]...)
+		}
+		return c
+	})
+	b, err := readOpen("wide.xlsx", data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer b.Close()
+	_, err = readTable(b, "Diodes")
+	readWantErr(t, err, "wide.xlsx", ErrTooLarge)
+	if err == nil || !strings.Contains(err.Error(), `wide.xlsx, sheet "Diodes", row 1: too large: 101 columns`) {
+		t.Errorf("error %v", err)
+	}
+}

@@ -555,6 +555,12 @@ func (t *xlsxTable) Next() (cells []string, row int, err error) {
 		for n > 0 && cols[n-1] == "" {
 			n--
 		}
+		if n > MaxColumns {
+			// cells without a reference are placed one after another,
+			// past column XFD
+			return nil, 0, &FileError{File: t.book.name, Sheet: t.sheet, Row: t.row, Kind: ErrTooLarge,
+				Reason: fmt.Sprintf("too large: %d columns, more than %d (the most a worksheet holds)", n, MaxColumns)}
+		}
 		return cols[:n], t.row, nil
 	}
 	if err := t.rows.Error(); err != nil {
