@@ -209,7 +209,11 @@ func (c RerateCurve) Factor(ta float64) (f float64, outside bool) {
 	}
 	for k := 1; k < c.n; k++ {
 		if ta <= c.t[k] {
-			return c.f[k-1] + (c.f[k]-c.f[k-1])*(ta-c.t[k-1])/(c.t[k]-c.t[k-1]), false
+			// weights rather than f0 + Δf·u: exact at both points and never
+			// outside [f0, f1] by rounding (0.9 + (0−0.9)·84/84 gave −1e−16)
+			u := (ta - c.t[k-1]) / (c.t[k] - c.t[k-1])
+			f = c.f[k-1]*(1-u) + c.f[k]*u
+			return min(max(f, min(c.f[k-1], c.f[k])), max(c.f[k-1], c.f[k])), false
 		}
 	}
 	last := c.f[c.n-1]
