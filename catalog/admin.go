@@ -118,6 +118,34 @@ func (s *Store) RemoveSource(ctx context.Context, label string) (parts, offers i
 	return parts, offers, nil
 }
 
+// PartCounts counts the parts, by kind and by type, and nothing else: no
+// offer or source counts and no look at the text index, so it is the cheap
+// count that pick uses to attribute the parts its SQL pre-filters leave out.
+func (s *Store) PartCounts(ctx context.Context) (Stats, error) {
+	st := Stats{ByKind: map[string]int{}, ByType: map[string]int{}}
+	rows, err := s.db.QueryContext(ctx, `SELECT "kind", coalesce("type", ''), count(*) FROM parts GROUP BY 1, 2`)
+	if err != nil {
+		return Stats{}, fmt.Errorf("catalog %s: %w", s.Path, err)
+	}
+	defer rows.Close()
+	for rows.Next() {
+		var k, t string
+		var n int
+		if err := rows.Scan(&k, &t, &n); err != nil {
+			return Stats{}, fmt.Errorf("catalog %s: %w", s.Path, err)
+		}
+		st.Parts += n
+		st.ByKind[k] += n
+		if t != "" {
+			st.ByType[t] += n
+		}
+	}
+	if err := rows.Err(); err != nil {
+		return Stats{}, fmt.Errorf("catalog %s: %w", s.Path, err)
+	}
+	return st, nil
+}
+
 // Stats returns catalog counts. IndexOK tells whether the text index
 // reflects the catalog (it opens the index).
 func (s *Store) Stats(ctx context.Context) (Stats, error) {

@@ -18,6 +18,13 @@ type Source interface {
 // statser is implemented by sources that can count their parts by kind
 // and type (*catalog.Store); Pick then reports how many parts the SQL
 // pre-filter eliminated.
+// partCounter is a Source that counts its parts by kind and type cheaply
+// (*catalog.Store does, without opening the text index); preferred over
+// statser.
+type partCounter interface {
+	PartCounts(ctx context.Context) (catalog.Stats, error)
+}
+
 type statser interface {
 	Stats(ctx context.Context) (catalog.Stats, error)
 }
@@ -91,7 +98,11 @@ type loaded struct {
 func load(ctx context.Context, src Source, s *spec.Spec, opt Options) (*loaded, error) {
 	opt = opt.withDefaults()
 	var stats *catalog.Stats
-	if st, ok := src.(statser); ok {
+	if c, ok := src.(partCounter); ok {
+		if v, err := c.PartCounts(ctx); err == nil {
+			stats = &v
+		}
+	} else if st, ok := src.(statser); ok {
 		if v, err := st.Stats(ctx); err == nil {
 			stats = &v
 		}
