@@ -54,8 +54,8 @@ func TestConvertGoodRows(t *testing.T) {
 		{
 			name:    "schottky with units in headers and test conditions",
 			headers: []string{"Mfr", "Part number", "Description", "VRRM (V)", "IF(AV) (A)", "VF max @ 1A (V)", "IR @ VR (µA)", "Tj (°C)", "Package"},
-			cells:   []string{"Aldor Semi", "SB140-X", "Schottky barrier rectifier 1 A 40 V", "40", "1", "0.55", "500", "-55 to 125", "DO-41"},
-			want:    catalog.Part{Kind: catalog.Diode, Type: "schottky", Mfr: "Aldor Semi", MPN: "SB140-X", Desc: "Schottky barrier rectifier 1 A 40 V", Package: "DO-41"},
+			cells:   []string{"Aldor Semi", "ALS1-40X", "Schottky barrier rectifier 1 A 40 V", "40", "1", "0.55", "500", "-55 to 125", "DO-41"},
+			want:    catalog.Part{Kind: catalog.Diode, Type: "schottky", Mfr: "Aldor Semi", MPN: "ALS1-40X", Desc: "Schottky barrier rectifier 1 A 40 V", Package: "DO-41"},
 			nums:    map[string]float64{"vrrm": 40, "ifav": 1, "vf": 0.55, "vf_if": 1, "ir": 500e-6, "ir_vr": 40, "tjmax": 125},
 		},
 		{

@@ -15,8 +15,8 @@ import (
 const germanSheet = `Teileliste Dioden;;;;;;
 ;;;;;;
 Bezeichnung;Sperrspannung;Strom;Uf;Interne Nr.;Preis 100;Bemerkung
-SB540-G;40;5;0,55;X-17;0,21;Lager
-SB560-G;60;5;0,7;X-18;0,23;
+ALS5-40G;40;5;0,55;X-17;0,21;Lager
+ALS5-60G;60;5;0,7;X-18;0,23;
 `
 
 const germanMap = `# mapping for the German diode list
@@ -65,11 +65,11 @@ func TestMappingImport(t *testing.T) {
 		t.Fatalf("summary %+v", s)
 	}
 	yes := true
-	p := getPart(t, st, "Aldor Semiconductor", "SB540-G")
+	p := getPart(t, st, "Aldor Semiconductor", "ALS5-40G")
 	if p.Kind != catalog.Diode || p.Type != "schottky" || p.RoHS == nil || *p.RoHS != yes {
 		t.Errorf("part %+v", p)
 	}
-	checkNums(t, "SB540-G", p, map[string]float64{"vrrm": 40, "ifav": 5, "vf": 0.55, "vf_if": 5, "tjmax": 150})
+	checkNums(t, "ALS5-40G", p, map[string]float64{"vrrm": 40, "ifav": 5, "vf": 0.55, "vf_if": 5, "tjmax": 150})
 	if len(p.Offers) != 1 || p.Offers[0].Supplier != "Haendler Nord" || p.Offers[0].Currency != "EUR" ||
 		len(p.Offers[0].Breaks) != 1 || p.Offers[0].Breaks[0] != (catalog.PriceBreak{Qty: 100, Price: 0.21}) {
 		t.Errorf("offers %+v", p.Offers)
