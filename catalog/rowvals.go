@@ -14,33 +14,6 @@ import (
 // (absent), float64 (Number), string (Text, Enum) or int64 0/1 (Bool).
 type row []any
 
-// textOf returns the Text or Enum field name of p.
-func textOf(p *Part, name string) string {
-	switch name {
-	case "kind":
-		return string(p.Kind)
-	case "type":
-		return p.Type
-	case "mfr":
-		return p.Mfr
-	case "mpn":
-		return p.MPN
-	case "desc":
-		return p.Desc
-	case "package":
-		return p.Package
-	case "datasheet":
-		return p.Datasheet
-	case "lifecycle":
-		return p.Lifecycle
-	case "fuse_std":
-		return p.FuseStd
-	case "rerate":
-		return p.Rerate
-	}
-	return ""
-}
-
 func setText(p *Part, name, v string) {
 	switch name {
 	case "kind":
@@ -149,7 +122,7 @@ func partRowInto(p *Part, r row) (row, error) {
 				r[i] = b2i(*b)
 			}
 		case Text, Enum:
-			v := strings.TrimSpace(textOf(p, f.Name))
+			v := strings.TrimSpace(p.TextField(f.Name))
 			if v == "" {
 				continue
 			}

@@ -27,6 +27,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"partsieve/internal/sheetsafe"
 	"path/filepath"
 	"sort"
 	"strconv"
@@ -794,21 +795,13 @@ func WriteRejectsCSV(w io.Writer, rejects []Reject) error {
 		return err
 	}
 	for _, r := range rejects {
-		rec := []string{safeCell(r.File), safeCell(r.Sheet), fmt.Sprint(r.Row), safeCell(r.Column), safeCell(r.Raw), safeCell(r.Reason)}
+		rec := []string{sheetsafe.Text(r.File), sheetsafe.Text(r.Sheet), fmt.Sprint(r.Row), sheetsafe.Text(r.Column), sheetsafe.Text(r.Raw), sheetsafe.Text(r.Reason)}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
 	}
 	cw.Flush()
 	return cw.Error()
-}
-
-// safeCell neutralises text that a spreadsheet would run as a formula.
-func safeCell(s string) string {
-	if s != "" && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
-		return "'" + s
-	}
-	return s
 }
 
 // openBook opens spreadsheets; tests replace it to feed failing readers.

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"partsieve/internal/sheetsafe"
 	"sort"
 	"strconv"
 	"strings"
@@ -43,21 +44,8 @@ func writeJSON(w io.Writer, v any) error {
 }
 
 // csvSafe neutralises text that a spreadsheet program would evaluate as a
-// formula (leading = + - @, tab or CR) by prefixing an apostrophe; plain
-// numbers written by us are left alone.
-func csvSafe(s string) string {
-	if s == "" {
-		return s
-	}
-	switch s[0] {
-	case '=', '+', '-', '@', '\t', '\r':
-		if _, err := strconv.ParseFloat(s, 64); err == nil {
-			return s
-		}
-		return "'" + s
-	}
-	return s
-}
+// formula; plain numbers written by us are left alone.
+var csvSafe = sheetsafe.Cell
 
 func writeCSV(w io.Writer, header []string, rows [][]string) error {
 	cw := csv.NewWriter(w)

@@ -2,6 +2,7 @@ package shortlist
 
 import (
 	"math"
+	"partsieve/internal/sheetsafe"
 	"strings"
 
 	"partsieve/catalog"
@@ -14,20 +15,11 @@ import (
 // spreadsheet programs take as "this is text" (and show, in a CSV file).
 // Every text column of the CSV goes through it; numeric columns hold
 // numbers written by partsieve and are left alone.
-func SafeText(s string) string {
-	if s == "" {
-		return s
-	}
-	switch s[0] {
-	case '=', '+', '-', '@', '\t', '\r', '\n':
-		return "'" + s
-	}
-	return s
-}
+func SafeText(s string) string { return sheetsafe.Text(s) }
 
 // Risky reports whether text would be taken for a formula by a spreadsheet
 // program (what SafeText neutralises).
-func Risky(s string) bool { return s != "" && SafeText(s) != s }
+func Risky(s string) bool { return sheetsafe.Risky(s) }
 
 // typeLabel is the kind and type as people say it.
 func typeLabel(p *catalog.Part) string {

@@ -314,31 +314,10 @@ func (w *Writer) Row(i int) []string {
 }
 
 func (w *Writer) cell(p *catalog.Part, o *catalog.Offer, c column) string {
+	if f, ok := catalog.FieldByName(c.key); ok && f.Type != catalog.Number {
+		return p.TextField(c.key)
+	}
 	switch c.key {
-	case "kind":
-		return string(p.Kind)
-	case "type":
-		return p.Type
-	case "mfr":
-		return p.Mfr
-	case "mpn":
-		return p.MPN
-	case "desc":
-		return p.Desc
-	case "package":
-		return p.Package
-	case "datasheet":
-		return p.Datasheet
-	case "lifecycle":
-		return p.Lifecycle
-	case "rohs":
-		return yesNo(p.RoHS)
-	case "aecq":
-		return yesNo(p.AECQ)
-	case "fuse_std":
-		return p.FuseStd
-	case "rerate":
-		return p.Rerate
 	case "supplier":
 		return o.Supplier
 	case "sku":
@@ -372,16 +351,6 @@ func (w *Writer) cell(p *catalog.Part, o *catalog.Offer, c column) string {
 		}
 	}
 	return ""
-}
-
-func yesNo(b *bool) string {
-	switch {
-	case b == nil:
-		return ""
-	case *b:
-		return "yes"
-	}
-	return "no"
 }
 
 // fmtNum writes v as a plain decimal (no exponent) at 9 significant digits.
