@@ -5,64 +5,29 @@ import (
 	"errors"
 	"math"
 	"os"
-	"path/filepath"
+	"partsieve/internal/seedstore"
 	"strings"
-	"sync"
 	"testing"
 
 	"partsieve/catalog"
-	"partsieve/importers"
 	"partsieve/query/spec"
 	"partsieve/query/topology"
 	"partsieve/seeddata"
 )
 
 var (
-	seedOnce  sync.Once
-	seedStore *catalog.Store
-	seedErr   error
-	seedDir   string
+	seed seedstore.Shared
 )
 
 func TestMain(m *testing.M) {
 	code := m.Run()
-	if seedStore != nil {
-		seedStore.Close()
-	}
-	if seedDir != "" {
-		os.RemoveAll(seedDir)
-	}
+	seed.Close()
 	os.Exit(code)
 }
 
 // seedCatalog returns a store holding the seed catalog, imported once per
 // test binary through the real importer.
-func seedCatalog(t testing.TB) *catalog.Store {
-	t.Helper()
-	seedOnce.Do(func() {
-		dir, err := os.MkdirTemp("", "shortlist-seed")
-		if err != nil {
-			seedErr = err
-			return
-		}
-		seedDir = dir
-		ctx := context.Background()
-		st, err := catalog.Open(ctx, filepath.Join(dir, "catalog.db"))
-		if err != nil {
-			seedErr = err
-			return
-		}
-		if _, err := importers.ImportData(ctx, st, seeddata.FileName, seeddata.CatalogCSV, importers.Options{Source: seeddata.SourceLabel}); err != nil {
-			seedErr = err
-			return
-		}
-		seedStore = st
-	})
-	if seedErr != nil {
-		t.Fatalf("seed catalog: %v", seedErr)
-	}
-	return seedStore
-}
+func seedCatalog(t testing.TB) *catalog.Store { return seed.Get(t) }
 
 func exampleSpec(t testing.TB, name string) (*spec.Spec, string) {
 	t.Helper()

@@ -5,15 +5,8 @@ import (
 	"testing"
 )
 
-func osMkdirTemp() (string, error) { return os.MkdirTemp("", "partsieve-topology-") }
-
 func TestMain(m *testing.M) {
 	code := m.Run()
-	if seedStore != nil {
-		seedStore.Close()
-	}
-	if seedDir != "" {
-		os.RemoveAll(seedDir)
-	}
+	seed.Close()
 	os.Exit(code)
 }

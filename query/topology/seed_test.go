@@ -1,52 +1,21 @@
 package topology
 
 import (
-	"context"
-	"path/filepath"
-	"sync"
+	"partsieve/internal/seedstore"
 	"testing"
 
 	"partsieve/catalog"
-	"partsieve/importers"
 	"partsieve/query/spec"
 	"partsieve/seeddata"
 )
 
 var (
-	seedOnce  sync.Once
-	seedStore *catalog.Store
-	seedErr   error
-	seedDir   string
+	seed seedstore.Shared
 )
 
 // seedCatalog returns a store holding the seed catalog, imported once per
-// test binary into a temporary directory through the real importer.
-func seedCatalog(t testing.TB) *catalog.Store {
-	t.Helper()
-	seedOnce.Do(func() {
-		dir, err := osMkdirTemp()
-		if err != nil {
-			seedErr = err
-			return
-		}
-		seedDir = dir
-		ctx := context.Background()
-		st, err := catalog.Open(ctx, filepath.Join(dir, "catalog.db"))
-		if err != nil {
-			seedErr = err
-			return
-		}
-		if _, err := importers.ImportData(ctx, st, seeddata.FileName, seeddata.CatalogCSV, importers.Options{Source: seeddata.SourceLabel}); err != nil {
-			seedErr = err
-			return
-		}
-		seedStore = st
-	})
-	if seedErr != nil {
-		t.Fatalf("seed catalog: %v", seedErr)
-	}
-	return seedStore
-}
+// test binary through the real importer.
+func seedCatalog(t testing.TB) *catalog.Store { return seed.Get(t) }
 
 // exampleSpec parses one of the example specs of seeddata.
 func exampleSpec(t testing.TB, name string) *spec.Spec {
