@@ -179,24 +179,16 @@ func parseOne(s string) (catalog.Cond, error) {
 }
 
 // parseNumber reads v with the field's dimension. A bare SI prefix
-// ("20m", "4.7k") takes the field's unit.
+// ("20m", "4.7k") takes the field's unit (units.Parse does that).
 func parseNumber(v string, f catalog.Field) (float64, error) {
 	x, err := units.Parse(v, f.Dim, units.Signed)
-	if err == nil {
-		return x, nil
-	}
 	if errors.Is(err, units.ErrEmpty) {
 		return 0, fmt.Errorf("%s needs a number", f.Name)
 	}
-	if sym := f.Dim.Symbol(); sym != "" {
-		last := v[len(v)-1]
-		if strings.ContainsRune("pnumkMG", rune(last)) || strings.HasSuffix(v, "µ") || strings.HasSuffix(v, "μ") {
-			if y, err2 := units.Parse(v+sym, f.Dim, units.Signed); err2 == nil {
-				return y, nil
-			}
-		}
+	if err != nil {
+		return 0, fmt.Errorf("%s is a %s in %s: %v", f.Name, f.Dim, f.Dim.Symbol(), err)
 	}
-	return 0, fmt.Errorf("%s is a %s in %s: %v", f.Name, f.Dim, f.Dim.Symbol(), err)
+	return x, nil
 }
 
 func parseBool(s string) (bool, bool) {
