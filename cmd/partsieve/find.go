@@ -175,26 +175,15 @@ func writePartsCSV(w interface{ Write([]byte) (int, error) }, parts []catalog.Pa
 	return writeCSV(w, header, rows)
 }
 
+// bestOfferMachine is offerSummary for CSV: the lowest entry price with
+// its currency, and the total stock.
 func bestOfferMachine(p *catalog.Part) (price, cur, stock string) {
-	best := -1.0
-	var total int64
-	known := false
-	for _, o := range p.Offers {
-		if o.Stock != nil {
-			total += *o.Stock
-			known = true
-		}
-		for _, b := range o.Breaks {
-			if b.Qty <= 1 && (best < 0 || b.Price < best) {
-				best, cur = b.Price, o.Currency
-			}
-		}
-	}
-	if best >= 0 {
-		price = machine(best)
+	prices, total, known := offerSummary(p)
+	if len(prices) > 0 {
+		price, cur = machine(prices[0].Price), prices[0].Currency
 	}
 	if known {
 		stock = fmt.Sprint(total)
 	}
-	return
+	return price, cur, stock
 }

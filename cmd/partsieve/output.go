@@ -169,43 +169,57 @@ func keyRatings(p *catalog.Part) string {
 	return strings.Join(parts, ", ")
 }
 
-// bestOffer returns the lowest single-piece price (the price of the
-// smallest break) per currency, lowest first ("0.39 USD / 0.395 EUR"; prices
-// in different currencies are not compared), and the total stock.
-func bestOffer(p *catalog.Part) (price string, stock string) {
+// currencyPrice is the lowest entry price of a part in one currency.
+type currencyPrice struct {
+	Currency string
+	Price    float64
+}
+
+// offerSummary returns, per currency, the lowest entry price (the price of
+// an offer's smallest break), lowest first (prices in different currencies
+// are not compared with each other, only ordered), and the total stock
+// (known is false when no offer gives its stock).
+func offerSummary(p *catalog.Part) (prices []currencyPrice, stock int64, known bool) {
 	best := map[string]float64{}
-	var total int64
-	known := false
 	for _, o := range p.Offers {
 		if o.Stock != nil {
-			total += *o.Stock
+			stock += *o.Stock
 			known = true
 		}
-		if len(o.Breaks) == 0 {
+		first := -1
+		for i, b := range o.Breaks {
+			if first < 0 || b.Qty < o.Breaks[first].Qty {
+				first = i
+			}
+		}
+		if first < 0 {
 			continue
 		}
-		b := o.Breaks
-		sort.Slice(b, func(i, j int) bool { return b[i].Qty < b[j].Qty })
-		if v, ok := best[o.Currency]; !ok || b[0].Price < v {
-			best[o.Currency] = b[0].Price
+		if v, ok := best[o.Currency]; !ok || o.Breaks[first].Price < v {
+			best[o.Currency] = o.Breaks[first].Price
 		}
 	}
-	curs := make([]string, 0, len(best))
-	for c := range best {
-		curs = append(curs, c)
+	for c, v := range best {
+		prices = append(prices, currencyPrice{c, v})
 	}
-	sort.Slice(curs, func(i, j int) bool {
-		return best[curs[i]] < best[curs[j]] || best[curs[i]] == best[curs[j]] && curs[i] < curs[j]
+	sort.Slice(prices, func(i, j int) bool {
+		return prices[i].Price < prices[j].Price || prices[i].Price == prices[j].Price && prices[i].Currency < prices[j].Currency
 	})
+	return prices, stock, known
+}
+
+// bestOffer formats offerSummary for people: "0.39 USD / 0.395 EUR" and
+// the total stock ("" when unknown).
+func bestOffer(p *catalog.Part) (price string, stock string) {
+	prices, total, known := offerSummary(p)
 	var ps []string
-	for _, c := range curs {
-		ps = append(ps, strings.TrimSpace(money(best[c])+" "+c))
+	for _, cp := range prices {
+		ps = append(ps, strings.TrimSpace(money(cp.Price)+" "+cp.Currency))
 	}
-	price = strings.Join(ps, " / ")
 	if known {
 		stock = strconv.FormatInt(total, 10)
 	}
-	return price, stock
+	return strings.Join(ps, " / "), stock
 }
 
 // money writes a unit price with at least two decimals and no trailing
