@@ -317,3 +317,33 @@ func (p *Part) TextField(name string) string {
 	}
 	return ""
 }
+
+// Label is the kind and type as people say them: "P-MOSFET",
+// "schottky diode", "fuse T (iec)".
+func (p *Part) Label() string {
+	switch p.Kind {
+	case MOSFET:
+		switch strings.ToLower(p.Type) {
+		case "p":
+			return "P-MOSFET"
+		case "n":
+			return "N-MOSFET"
+		}
+		return "MOSFET"
+	case Fuse:
+		s := "fuse"
+		if p.Type != "" {
+			s += " " + p.Type
+		}
+		if p.FuseStd != "" {
+			s += " (" + p.FuseStd + ")"
+		}
+		return s
+	case Diode:
+		if p.Type != "" {
+			return p.Type + " diode"
+		}
+		return "diode"
+	}
+	return string(p.Kind)
+}

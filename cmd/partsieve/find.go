@@ -119,7 +119,7 @@ func runFind(cmd *cobra.Command, a *app, o findOptions, text []string) error {
 		for i := range parts {
 			p := &parts[i]
 			price, stock := bestOffer(p)
-			t.row(p.MPN, p.Mfr, typeLabel(p), p.Package, keyRatings(p), price, stock)
+			t.row(p.MPN, p.Mfr, p.Label(), p.Package, keyRatings(p), price, stock)
 		}
 		if err := t.flush(); err != nil {
 			return err

@@ -83,35 +83,6 @@ func machine(v float64) string {
 	return strconv.FormatFloat(v, 'g', -1, 64)
 }
 
-// typeLabel is the kind and type as people say it.
-func typeLabel(p *catalog.Part) string {
-	switch p.Kind {
-	case catalog.MOSFET:
-		switch p.Type {
-		case "p":
-			return "P-MOSFET"
-		case "n":
-			return "N-MOSFET"
-		}
-		return "MOSFET"
-	case catalog.Fuse:
-		s := "fuse"
-		if p.Type != "" {
-			s += " " + p.Type
-		}
-		if p.FuseStd != "" {
-			s += " (" + p.FuseStd + ")"
-		}
-		return s
-	case catalog.Diode:
-		if p.Type != "" {
-			return p.Type
-		}
-		return "diode"
-	}
-	return string(p.Kind)
-}
-
 // keyRatings summarises the ratings that matter for the part's class.
 func keyRatings(p *catalog.Part) string {
 	var parts []string

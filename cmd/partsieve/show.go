@@ -55,7 +55,7 @@ spaces and dashes. When several makers use the same number, all are shown.`,
 
 func printPart(a *app, p *catalog.Part) error {
 	w := a.stdout
-	fmt.Fprintf(w, "%s  %s  (%s)\n", p.MPN, p.Mfr, typeLabel(p))
+	fmt.Fprintf(w, "%s  %s  (%s)\n", p.MPN, p.Mfr, p.Label())
 	if p.Desc != "" {
 		fmt.Fprintf(w, "%s\n", p.Desc)
 	}

@@ -358,7 +358,7 @@ func (b *builder) design(tr *topology.TopologyResult, c *topology.Candidate) (De
 // line builds the order line of catalog part p in role of design c.
 func (b *builder) line(d *Design, kind, role string, p *catalog.Part, c *topology.Candidate) (Line, error) {
 	l := Line{Design: d.Label, Topology: d.Topology, Kind: kind, Role: role, Mfr: p.Mfr, MPN: p.MPN,
-		Type: typeLabel(p), Package: p.Package, PerBoard: 1, Loss: nan(), Drop: nan()}
+		Type: p.Label(), Package: p.Package, PerBoard: 1, Loss: nan(), Drop: nan()}
 	l.Ratings, l.VRating, l.IRating = ratings(p)
 	if c != nil {
 		l.Loss, l.Drop = float64(c.Loss), float64(c.Drop)

@@ -21,35 +21,6 @@ func SafeText(s string) string { return sheetsafe.Text(s) }
 // program (what SafeText neutralises).
 func Risky(s string) bool { return sheetsafe.Risky(s) }
 
-// typeLabel is the kind and type as people say it.
-func typeLabel(p *catalog.Part) string {
-	switch p.Kind {
-	case catalog.MOSFET:
-		switch strings.ToLower(p.Type) {
-		case "p":
-			return "P-MOSFET"
-		case "n":
-			return "N-MOSFET"
-		}
-		return "MOSFET"
-	case catalog.Fuse:
-		s := "fuse"
-		if p.Type != "" {
-			s += " " + p.Type
-		}
-		if p.FuseStd != "" {
-			s += " (" + p.FuseStd + ")"
-		}
-		return s
-	case catalog.Diode:
-		if p.Type != "" {
-			return p.Type + " diode"
-		}
-		return "diode"
-	}
-	return string(p.Kind)
-}
-
 // field formats a field of p ("45 mΩ"), "" when absent.
 func field(p *catalog.Part, name string) string {
 	v, ok := p.Get(name)
