@@ -299,6 +299,9 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 			}
 			err = fmt.Errorf("%s: %w", where, err)
 		}
+		if lastRow == 0 {
+			return fmt.Errorf("%w; nothing was written", err)
+		}
 		return fmt.Errorf("%w; the import stopped after row %d and nothing was written", err, lastRow)
 	}
 

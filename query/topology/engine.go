@@ -15,7 +15,8 @@ import (
 // source): R_G starts at 10 kΩ, the value of the derived example
 // REFERENCE E8, and is raised to the next E12 value when the resistor or
 // the Zener would dissipate too much; the resistor is assumed to be an
-// 0805 part rated 0.125 W and used to 50 %.
+// 0805 part rated 0.125 W (common practice for that size) and used to
+// 50 %.
 const (
 	GateResistorDefault  = 10e3
 	GateResistorRating   = 0.125
