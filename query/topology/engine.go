@@ -486,56 +486,84 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 	if z, ok := e.zcache[k]; ok {
 		return z
 	}
-	best := &zchoice{}
-	bestKey, bestTie := math.Inf(1), math.Inf(1)
+	costOf := func(z *diodeRec) float64 {
+		c := e.cost(z.p).unit
+		if math.IsNaN(c) {
+			return math.Inf(1)
+		}
+		return c
+	}
+	// the Zeners that fit the window, then the lowest key by the ranking;
+	// ties go to the lower loss (or cost when ranking by cost), then the
+	// lower part number, then the first in catalog order. Costs are
+	// computed only where needed, after the parts are fetched in one batch.
+	var win []zchoice
 	for i := range e.cat.zeners {
 		z := &e.cat.zeners[i]
 		ch, ok := e.zenerEval(z, k)
 		if !ok || ch.vzMin < k.lo || ch.vzMax > k.hi {
 			continue
 		}
-		vzMin, vzMax, pzLim := ch.vzMin, ch.vzMax, ch.pzLimit
-		costOf := func(z *diodeRec) float64 {
-			c := e.cost(z.p).unit
-			if math.IsNaN(c) {
-				return math.Inf(1)
-			}
-			return c
+		win = append(win, ch)
+	}
+	fetch := func(list []zchoice) {
+		ps, ids := make([]*catalog.Part, len(list)), make([]int64, len(list))
+		for i := range list {
+			ps[i], ids[i] = list[i].z.p, list[i].z.cid
 		}
+		e.cat.need(ps, ids)
+	}
+	if e.opt.Rank == RankCost {
+		fetch(win)
+	}
+	keys := make([]float64, len(win))
+	bestKey := math.Inf(1)
+	for i := range win {
+		ch := &win[i]
 		var key float64
 		switch e.opt.Rank {
 		case RankCost:
-			key = costOf(z)
+			key = costOf(ch.z)
 		case RankMargin:
-			key = -math.Min(math.Min((k.hi-vzMax)/k.hi, (vzMin-k.lo)/k.lo),
-				math.Min((pzLim-ch.pz)/pzLim, (GateResistorMaxPower-ch.prg)/GateResistorMaxPower))
+			key = -math.Min(math.Min((k.hi-ch.vzMax)/k.hi, (ch.vzMin-k.lo)/k.lo),
+				math.Min((ch.pzLimit-ch.pz)/ch.pzLimit, (GateResistorMaxPower-ch.prg)/GateResistorMaxPower))
 		default:
 			key = ch.prgSteady + ch.pzSteady
 		}
-		if key > bestKey {
-			continue
+		if math.IsNaN(key) {
+			key = math.Inf(1)
 		}
-		if key == bestKey {
-			// ties: the lower loss (or cost when ranking by cost), then the part number
-			tie := costOf(z)
+		keys[i] = key
+		bestKey = math.Min(bestKey, key)
+	}
+	var tied []zchoice
+	for i := range win {
+		if keys[i] == bestKey {
+			tied = append(tied, win[i])
+		}
+	}
+	best := &zchoice{}
+	if len(tied) == 1 {
+		best = &tied[0]
+	} else if len(tied) > 1 {
+		if e.opt.Rank != RankCost {
+			fetch(tied)
+		}
+		tieOf := func(ch *zchoice) float64 {
 			if e.opt.Rank == RankCost {
-				tie = ch.prgSteady + ch.pzSteady
+				return ch.prgSteady + ch.pzSteady
 			}
-			if math.IsInf(bestTie, 1) && best.ok {
-				bestTie = costOf(best.z)
-				if e.opt.Rank == RankCost {
-					bestTie = best.prgSteady + best.pzSteady
-				}
-			}
-			if tie > bestTie || tie == bestTie && z.p.MPN >= best.z.p.MPN {
-				continue
-			}
-			bestTie = tie
-		} else {
-			bestTie = math.Inf(1) // computed when a tie needs it
+			return costOf(ch.z)
 		}
-		c := ch
-		best, bestKey = &c, key
+		best = &tied[0]
+		bestTie := tieOf(best)
+		for i := 1; i < len(tied); i++ {
+			ch := &tied[i]
+			t := tieOf(ch)
+			if t < bestTie || t == bestTie && ch.z.p.MPN < best.z.p.MPN {
+				best, bestTie = ch, t
+			}
+		}
 	}
 	e.zcache[k] = best
 	return best

@@ -204,6 +204,7 @@ func (e *engine) costOf(x *cand) {
 
 func (e *engine) partRef(role string, p *catalog.Part) PartRef {
 	pc := e.cost(p)
+	p = e.cat.detail(p)
 	return PartRef{Role: role, Mfr: p.Mfr, MPN: p.MPN, Type: p.Type, Package: p.Package,
 		UnitPrice: Num(pc.unit), Supplier: pc.supplier, Stock: pc.stock, PriceNote: pc.note}
 }
@@ -299,6 +300,13 @@ func (e *engine) runSeries() TopologyResult {
 	}
 	cs := top.sorted()
 	tr.Qualified = top.count
+	var need []*catalog.Part
+	var ids []int64
+	for k := range cs {
+		d := &e.cat.diodes[cs[k].a]
+		need, ids = append(need, d.p), append(ids, d.cid)
+	}
+	e.cat.need(need, ids)
 	for k := range cs {
 		x := &cs[k]
 		d := &e.cat.diodes[x.a]
@@ -349,6 +357,16 @@ func (e *engine) runFET(nfet bool) TopologyResult {
 	tr.Qualified = top.count
 	build := func(list []cand) []Candidate {
 		var res []Candidate
+		var need []*catalog.Part
+		var ids []int64
+		for k := range list {
+			t := &fets[list[k].a]
+			need, ids = append(need, t.p), append(ids, t.cid)
+			if z := list[k].z; z != nil {
+				need, ids = append(need, z.z.p), append(ids, z.z.cid)
+			}
+		}
+		e.cat.need(need, ids)
 		for k := range list {
 			x := &list[k]
 			t := &fets[x.a]

@@ -3,6 +3,7 @@ package topology
 import (
 	"math"
 	"strings"
+	"sync"
 
 	"partsieve/catalog"
 	"partsieve/query/physics"
@@ -22,6 +23,77 @@ type Catalog struct {
 	// skipped counts parts of a kind whose type is missing or not used by
 	// any topology (TVS diodes).
 	skipped int
+
+	// A catalog read from the catalog's columns (Pick on a store) holds
+	// light parts: kind, type, maker, part number and the fuse texts, the
+	// rest of the numbers being in the records. fetch reads full parts
+	// (with offers) by id for the few that are shown or costed; full keeps
+	// them, by light part.
+	lazy *lazyParts
+}
+
+// lazyParts fetches and keeps the full forms of light parts.
+type lazyParts struct {
+	fetch func(ids []int64) ([]catalog.Part, []int64, error)
+	mu    sync.Mutex
+	full  map[*catalog.Part]*catalog.Part
+	err   error
+}
+
+// need makes sure the full forms of the light parts ps (ids[i] is the id
+// of ps[i]) are at hand; a no-op for catalogs of full parts. A read error
+// is kept for Pick to return.
+func (c *Catalog) need(ps []*catalog.Part, ids []int64) {
+	lz := c.lazy
+	if lz == nil {
+		return
+	}
+	lz.mu.Lock()
+	defer lz.mu.Unlock()
+	var want []int64
+	at := map[int64][]*catalog.Part{}
+	for i, p := range ps {
+		if p == nil || lz.full[p] != nil {
+			continue
+		}
+		if _, ok := at[ids[i]]; !ok {
+			want = append(want, ids[i])
+		}
+		at[ids[i]] = append(at[ids[i]], p)
+	}
+	if len(want) == 0 {
+		return
+	}
+	got, gotIDs, err := lz.fetch(want)
+	if err != nil {
+		if lz.err == nil {
+			lz.err = err
+		}
+		return
+	}
+	if lz.full == nil {
+		lz.full = map[*catalog.Part]*catalog.Part{}
+	}
+	for i := range got {
+		fp := &got[i]
+		for _, p := range at[gotIDs[i]] {
+			lz.full[p] = fp
+		}
+	}
+}
+
+// detail returns the full form of p when it was fetched, else p.
+func (c *Catalog) detail(p *catalog.Part) *catalog.Part {
+	lz := c.lazy
+	if lz == nil {
+		return p
+	}
+	lz.mu.Lock()
+	defer lz.mu.Unlock()
+	if fp := lz.full[p]; fp != nil {
+		return fp
+	}
+	return p
 }
 
 // NewCatalog prepares parts for evaluation. The slice is kept, not
@@ -32,7 +104,7 @@ func NewCatalog(parts []catalog.Part) *Catalog {
 		p := &parts[i]
 		switch p.Kind {
 		case catalog.Diode:
-			d := newDiodeRec(p)
+			d := newDiodeRec(p, partNums{p})
 			switch strings.ToLower(p.Type) {
 			case "rectifier", "schottky":
 				c.diodes = append(c.diodes, d)
@@ -42,13 +114,13 @@ func NewCatalog(parts []catalog.Part) *Catalog {
 				c.skipped++
 			}
 		case catalog.Fuse:
-			c.fuses = append(c.fuses, newFuseRec(p))
+			c.fuses = append(c.fuses, newFuseRec(p, partNums{p}))
 		case catalog.MOSFET:
 			switch strings.ToLower(p.Type) {
 			case "p":
-				c.pfets = append(c.pfets, newFETRec(p))
+				c.pfets = append(c.pfets, newFETRec(p, partNums{p}))
 			case "n":
-				c.nfets = append(c.nfets, newFETRec(p))
+				c.nfets = append(c.nfets, newFETRec(p, partNums{p}))
 			default:
 				c.skipped++
 			}
@@ -67,6 +139,73 @@ func get(p *catalog.Part, name string) float64 {
 	return math.NaN()
 }
 
+// numField names a Number field the records read; numSource gives them
+// for one part, from its map (partNums) or from catalog columns
+// (colNums), without a lookup by name per value.
+type numField uint8
+
+const (
+	n_vrrm numField = iota
+	n_ifav
+	n_ifsm
+	n_ifsm_t
+	n_rthja
+	n_tjmax
+	n_pd
+	n_vz
+	n_vz_tol
+	n_vf
+	n_vf_if
+	n_vf_tj
+	n_vf2
+	n_vf2_if
+	n_vf2_tj
+	n_ir
+	n_ir_vr
+	n_ir_tj
+	n_ir2
+	n_ir2_tj
+	n_in
+	n_un_dc
+	n_un_ac
+	n_breaking
+	n_i2t
+	n_i2t_clear
+	n_rcold
+	n_vds
+	n_id
+	n_vgs_max
+	n_vgs_th
+	n_rdson
+	n_rdson_vgs
+	n_rdson2
+	n_rdson2_vgs
+	numFields
+)
+
+var numFieldNames = [numFields]string{"vrrm", "ifav", "ifsm", "ifsm_t", "rthja", "tjmax", "pd", "vz", "vz_tol", "vf", "vf_if", "vf_tj", "vf2", "vf2_if", "vf2_tj", "ir", "ir_vr", "ir_tj", "ir2", "ir2_tj", "in", "un_dc", "un_ac", "breaking", "i2t", "i2t_clear", "rcold", "vds", "id", "vgs_max", "vgs_th", "rdson", "rdson_vgs", "rdson2", "rdson2_vgs"}
+
+// numSource gives one part's Number fields; NaN when absent.
+type numSource interface{ num(f numField) float64 }
+
+// partNums reads a catalog.Part's map.
+type partNums struct{ p *catalog.Part }
+
+func (s partNums) num(f numField) float64 { return get(s.p, numFieldNames[f]) }
+
+// colNums reads row i of resolved columns (nil: no part has the field).
+type colNums struct {
+	cols *[numFields][]float64
+	i    int
+}
+
+func (s colNums) num(f numField) float64 {
+	if c := s.cols[f]; c != nil {
+		return c[s.i]
+	}
+	return math.NaN()
+}
+
 func has(v float64) bool { return !math.IsNaN(v) }
 
 func orDefault(v, def float64) float64 {
@@ -78,6 +217,7 @@ func orDefault(v, def float64) float64 {
 
 type diodeRec struct {
 	p        *catalog.Part
+	cid      int64 // catalog id of a light part (0 otherwise)
 	class    physics.DiodeClass
 	schottky bool
 	vrrm     float64
@@ -95,30 +235,30 @@ type diodeRec struct {
 	leakOK   bool
 }
 
-func newDiodeRec(p *catalog.Part) diodeRec {
+func newDiodeRec(p *catalog.Part, src numSource) diodeRec {
 	d := diodeRec{
 		p: p, class: physics.DiodeClassOf(strings.ToLower(p.Type)),
-		vrrm: get(p, "vrrm"), ifav: get(p, "ifav"), ifsm: get(p, "ifsm"),
-		ifsmT: orDefault(get(p, "ifsm_t"), physics.JEDECSurgeTime),
-		rth:   get(p, "rthja"), tjmax: get(p, "tjmax"), pd: get(p, "pd"),
-		vz: get(p, "vz"), vzTol: get(p, "vz_tol"),
+		vrrm: src.num(n_vrrm), ifav: src.num(n_ifav), ifsm: src.num(n_ifsm),
+		ifsmT: orDefault(src.num(n_ifsm_t), physics.JEDECSurgeTime),
+		rth:   src.num(n_rthja), tjmax: src.num(n_tjmax), pd: src.num(n_pd),
+		vz: src.num(n_vz), vzTol: src.num(n_vz_tol),
 	}
 	d.schottky = d.class == physics.Schottky
-	vf, vfi := get(p, "vf"), get(p, "vf_if")
+	vf, vfi := src.num(n_vf), src.num(n_vf_if)
 	if has(vf) && has(vfi) && vf > 0 && vfi > 0 {
 		d.fwdOK = true
-		d.fwd = physics.ForwardData{Class: d.class, VF: vf, IF: vfi, TJ: orDefault(get(p, "vf_tj"), 25)}
-		vf2, vf2i := get(p, "vf2"), get(p, "vf2_if")
+		d.fwd = physics.ForwardData{Class: d.class, VF: vf, IF: vfi, TJ: orDefault(src.num(n_vf_tj), 25)}
+		vf2, vf2i := src.num(n_vf2), src.num(n_vf2_if)
 		if has(vf2) && has(vf2i) && vf2 > 0 && vf2i > 0 {
 			d.fwd.Has2 = true
-			d.fwd.VF2, d.fwd.IF2, d.fwd.TJ2 = vf2, vf2i, orDefault(get(p, "vf2_tj"), 25)
+			d.fwd.VF2, d.fwd.IF2, d.fwd.TJ2 = vf2, vf2i, orDefault(src.num(n_vf2_tj), 25)
 		}
 	}
-	ir := get(p, "ir")
+	ir := src.num(n_ir)
 	if has(ir) && ir > 0 {
 		d.leakOK = true
-		d.leak = physics.LeakageData{IR: ir, VR: orDefault(get(p, "ir_vr"), 0), TJ: orDefault(get(p, "ir_tj"), 25)}
-		ir2, t2 := get(p, "ir2"), get(p, "ir2_tj")
+		d.leak = physics.LeakageData{IR: ir, VR: orDefault(src.num(n_ir_vr), 0), TJ: orDefault(src.num(n_ir_tj), 25)}
+		ir2, t2 := src.num(n_ir2), src.num(n_ir2_tj)
 		if has(ir2) && has(t2) && ir2 > 0 && t2 != d.leak.TJ {
 			d.leak.Has2, d.leak.IR2, d.leak.TJ2 = true, ir2, t2
 		}
@@ -148,6 +288,7 @@ func (d *diodeRec) surgeI2tAt(k, t float64) float64 {
 
 type fuseRec struct {
 	p         *catalog.Part
+	cid       int64
 	in        float64
 	undc      float64
 	unac      float64
@@ -162,9 +303,9 @@ type fuseRec struct {
 	rerateBad bool
 }
 
-func newFuseRec(p *catalog.Part) fuseRec {
-	f := fuseRec{p: p, in: get(p, "in"), undc: get(p, "un_dc"), unac: get(p, "un_ac"),
-		breaking: get(p, "breaking"), i2t: get(p, "i2t"), i2tClear: get(p, "i2t_clear"), rcold: get(p, "rcold")}
+func newFuseRec(p *catalog.Part, src numSource) fuseRec {
+	f := fuseRec{p: p, in: src.num(n_in), undc: src.num(n_un_dc), unac: src.num(n_un_ac),
+		breaking: src.num(n_breaking), i2t: src.num(n_i2t), i2tClear: src.num(n_i2t_clear), rcold: src.num(n_rcold)}
 	if s, err := physics.ParseFuseStd(p.FuseStd); err == nil && p.FuseStd != "" {
 		f.std, f.stdKnown = s, true
 	} else {
@@ -196,6 +337,7 @@ func (f *fuseRec) clearing() physics.ClearingI2t {
 
 type fetRec struct {
 	p      *catalog.Part
+	cid    int64
 	vds    float64
 	id     float64
 	vgsMax float64
@@ -207,13 +349,13 @@ type fetRec struct {
 	gateOK bool
 }
 
-func newFETRec(p *catalog.Part) fetRec {
-	t := fetRec{p: p, vds: get(p, "vds"), id: get(p, "id"), vgsMax: get(p, "vgs_max"), vgsTh: get(p, "vgs_th"),
-		rth: get(p, "rthja"), tjmax: get(p, "tjmax"), pd: get(p, "pd")}
-	r1, v1 := get(p, "rdson"), get(p, "rdson_vgs")
+func newFETRec(p *catalog.Part, src numSource) fetRec {
+	t := fetRec{p: p, vds: src.num(n_vds), id: src.num(n_id), vgsMax: src.num(n_vgs_max), vgsTh: src.num(n_vgs_th),
+		rth: src.num(n_rthja), tjmax: src.num(n_tjmax), pd: src.num(n_pd)}
+	r1, v1 := src.num(n_rdson), src.num(n_rdson_vgs)
 	if has(r1) && has(v1) {
 		t.gate = physics.GateRatings{R1: r1, V1: v1}
-		if r2, v2 := get(p, "rdson2"), get(p, "rdson2_vgs"); has(r2) && has(v2) {
+		if r2, v2 := src.num(n_rdson2), src.num(n_rdson2_vgs); has(r2) && has(v2) {
 			t.gate.Has2, t.gate.R2, t.gate.V2 = true, r2, v2
 		}
 		t.gateOK = t.gate.Validate() == nil

@@ -7,6 +7,7 @@ import (
 	"slices"
 	"sort"
 
+	"partsieve/catalog"
 	"partsieve/query/physics"
 )
 
@@ -227,6 +228,13 @@ func (e *engine) runShunt() TopologyResult {
 	}
 	tr.Qualified = pairs.count
 	ps := pairs.sorted()
+	var need []*catalog.Part
+	var ids []int64
+	for k := range ps {
+		fr, d := &e.cat.fuses[ps[k].a], &e.cat.diodes[ps[k].b]
+		need, ids = append(need, fr.p, d.p), append(ids, fr.cid, d.cid)
+	}
+	e.cat.need(need, ids)
 	for k := range ps {
 		x := &ps[k]
 		fr, d := &e.cat.fuses[x.a], &e.cat.diodes[x.b]
