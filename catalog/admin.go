@@ -114,6 +114,7 @@ func (s *Store) RemoveSource(ctx context.Context, label string) (parts, offers i
 	}
 	if newGen != prevGen {
 		s.updateIndex(ctx, prevGen, newGen, nil, gone)
+		s.refreshColumnsAfterChange(ctx)
 	}
 	return parts, offers, nil
 }

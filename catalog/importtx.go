@@ -761,6 +761,7 @@ func (t *ImportTx) Commit(counts Source) error {
 	}
 	if t.dirty {
 		t.s.updateIndex(ctx, t.prevGen, newGen, t.textIDs, nil)
+		t.s.refreshColumnsAfterChange(ctx)
 	}
 	return nil
 }

@@ -2,8 +2,10 @@ package topology
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"partsieve/catalog"
@@ -130,6 +132,23 @@ func load(ctx context.Context, src Source, s *spec.Spec, opt Options) (*loaded, 
 			out.parts = append(out.parts, p)
 		}
 	}
+	// canonical order (normalised part number, then maker), the order of
+	// the column file, so that ties among equal designs are broken the
+	// same way by both ways of reading the catalog
+	keys := make([]string, len(out.parts))
+	for i := range out.parts {
+		keys[i] = catalog.NormKey(out.parts[i].MPN) + "\x00" + catalog.NormKey(out.parts[i].Mfr)
+	}
+	idx := make([]int, len(out.parts))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortStableFunc(idx, func(a, b int) int { return strings.Compare(keys[a], keys[b]) })
+	sorted := make([]catalog.Part, len(out.parts))
+	for i, j := range idx {
+		sorted[i] = out.parts[j]
+	}
+	out.parts = sorted
 	if stats == nil {
 		return out, nil
 	}
@@ -173,6 +192,16 @@ func load(ctx context.Context, src Source, s *spec.Spec, opt Options) (*loaded, 
 // the parts they eliminate are counted when src can count its parts),
 // then every remaining part is evaluated with the device models.
 func Pick(ctx context.Context, src Source, s *spec.Spec, opt Options) (*Result, error) {
+	if v, ok := src.(viewer); ok && opt.withDefaults().Rank != RankCost {
+		// ranking by cost needs every qualifying part's offers: that reads
+		// the parts in full through SQL below
+		r, err := pickColumns(ctx, v, s, opt)
+		if err == nil || ctx.Err() != nil || !errors.Is(err, errColumns) {
+			return r, err
+		}
+		// the column file could not be read or written (a full disk, say):
+		// read the parts through SQL instead
+	}
 	ld, err := load(ctx, src, s, opt)
 	if err != nil {
 		return nil, err
@@ -216,4 +245,287 @@ func mergePre(r *Result, ld *loaded) {
 		}
 		r.Comparison[i] = compareRow(tr, r.Currency)
 	}
+}
+
+// viewer is a Source that gives a consistent view of the catalog with its
+// number fields in columns (*catalog.Store).
+type viewer interface {
+	View(ctx context.Context) (*catalog.View, error)
+}
+
+// setMatch reports whether the pre-filter applies to the parts of a
+// column set: its kind, one of its types, and its conditions on the type
+// (compared without case, as SQL's COLLATE NOCASE does).
+func (pf *prefilter) setMatch(k catalog.Kind, typ string) bool {
+	if k != pf.kind {
+		return false
+	}
+	if len(pf.types) > 0 && !slices.ContainsFunc(pf.types, func(t string) bool { return strings.EqualFold(t, typ) }) {
+		return false
+	}
+	for _, c := range pf.conds {
+		if c.Field != "type" {
+			continue
+		}
+		eq := strings.EqualFold(c.Text, typ)
+		if c.Op == "=" && !eq || c.Op == "!=" && eq {
+			return false
+		}
+	}
+	return true
+}
+
+// numCond is a pre-filter condition on a column; a NaN (absent) value
+// fails it, as NULL fails the SQL comparison.
+type numCond struct {
+	col []float64
+	ge  bool
+	x   float64
+}
+
+func (c numCond) holds(i int) bool {
+	if c.col == nil {
+		return false
+	}
+	v := c.col[i]
+	if c.ge {
+		return v >= c.x
+	}
+	return v <= c.x
+}
+
+// numConds resolves the number conditions of pf on the set.
+func (pf *prefilter) numConds(cs *catalog.ColumnSet) ([]numCond, error) {
+	var out []numCond
+	for _, c := range pf.conds {
+		if c.Field == "type" {
+			continue
+		}
+		switch c.Op {
+		case ">=", "<=":
+			out = append(out, numCond{col: cs.Col(c.Field), ge: c.Op == ">=", x: c.Num})
+		default:
+			return nil, fmt.Errorf("pick: pre-filter operator %q on %s has no column form", c.Op, c.Field)
+		}
+	}
+	return out, nil
+}
+
+// loadColumns reads the parts the spec's topologies need from the
+// catalog's columns: the pre-filters are applied to the columns in
+// memory, the parts that pass become light parts with their records, and
+// the full parts of those shown are read later from the same view. The
+// result equals load's (same parts, same eliminations).
+func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Options) (*Catalog, map[Topology][]Elimination, error) {
+	var pfs []prefilter
+	for _, pf := range prefilters(s) {
+		for _, t := range pf.topos {
+			if opt.wants(t) {
+				pfs = append(pfs, pf)
+				break
+			}
+		}
+	}
+	cols, err := view.Columns(ctx, func(k catalog.Kind, typ string) bool {
+		for i := range pfs {
+			if pfs[i].setMatch(k, typ) {
+				return true
+			}
+		}
+		return false
+	})
+	if err != nil {
+		return nil, nil, err
+	}
+	// first pass: which rows some pre-filter keeps, and the counts
+	keep := make([][]int32, len(cols.Sets))
+	total, have := make([]int, len(pfs)), make([]int, len(pfs))
+	n := 0
+	for si, cs := range cols.Sets {
+		var conds [][]numCond
+		counted := make([]bool, len(pfs))
+		for k := range pfs {
+			pf := &pfs[k]
+			if pf.setMatch(cs.Kind, cs.Type) {
+				c, err := pf.numConds(cs)
+				if err != nil {
+					return nil, nil, err
+				}
+				conds = append(conds, c)
+			}
+			if pf.label != "" && pf.matches(&catalog.Part{Kind: cs.Kind, Type: cs.Type}) {
+				counted[k] = true
+				total[k] += cs.Len()
+			}
+		}
+		for i := 0; i < cs.Len(); i++ {
+			for _, cc := range conds {
+				ok := true
+				for _, c := range cc {
+					if !c.holds(i) {
+						ok = false
+						break
+					}
+				}
+				if ok {
+					keep[si] = append(keep[si], int32(i))
+					break
+				}
+			}
+		}
+		n += len(keep[si])
+		for k := range pfs {
+			if counted[k] {
+				have[k] += len(keep[si])
+			}
+		}
+	}
+	// second pass: light parts (one allocation, so pointers stay put) and
+	// their records
+	parts := make([]catalog.Part, n)
+	var nr [5]int
+	for si, cs := range cols.Sets {
+		if r := roleOf(cs); r >= 0 {
+			nr[r] += len(keep[si])
+		}
+	}
+	c := &Catalog{parts: parts, diodes: make([]diodeRec, 0, nr[roleDiode]), zeners: make([]diodeRec, 0, nr[roleZener]),
+		fuses: make([]fuseRec, 0, nr[roleFuse]), pfets: make([]fetRec, 0, nr[rolePFET]), nfets: make([]fetRec, 0, nr[roleNFET]), lazy: &lazyParts{fetch: func(ids []int64) ([]catalog.Part, []int64, error) {
+			return view.Parts(ctx, ids)
+		}}}
+	// each role's records in canonical order: a merge of its sets by Ord
+	rcs := make([][numFields][]float64, len(cols.Sets))
+	roles := make([][]int, 5)
+	for si, cs := range cols.Sets {
+		for f := range numFields {
+			rcs[si][f] = cs.Col(numFieldNames[f])
+		}
+		if r := roleOf(cs); r >= 0 {
+			roles[r] = append(roles[r], si)
+		} else {
+			c.skipped += len(keep[si])
+		}
+	}
+	at := 0
+	for r, sets := range roles {
+		pos := make([]int, len(sets))
+		for {
+			best, bestOrd := -1, uint32(0)
+			for j, si := range sets {
+				if pos[j] < len(keep[si]) {
+					if o := cols.Sets[si].Ord[keep[si][pos[j]]]; best < 0 || o < bestOrd {
+						best, bestOrd = j, o
+					}
+				}
+			}
+			if best < 0 {
+				break
+			}
+			si := sets[best]
+			cs := cols.Sets[si]
+			i := int(keep[si][pos[best]])
+			pos[best]++
+			p := &parts[at]
+			at++
+			p.Kind, p.Type, p.Mfr, p.MPN = cs.Kind, cs.Type, cs.Mfr[i], cs.MPN[i]
+			if cs.Kind == catalog.Fuse {
+				p.FuseStd, p.Rerate = cs.FuseStd[i], cs.Rerate[i]
+			}
+			src := colNums{cols: &rcs[si], i: i}
+			id := cs.ID[i]
+			switch r {
+			case roleDiode, roleZener:
+				d := newDiodeRec(p, src)
+				d.cid = id
+				if r == roleDiode {
+					c.diodes = append(c.diodes, d)
+				} else {
+					c.zeners = append(c.zeners, d)
+				}
+			case roleFuse:
+				f := newFuseRec(p, src)
+				f.cid = id
+				c.fuses = append(c.fuses, f)
+			default:
+				t := newFETRec(p, src)
+				t.cid = id
+				if r == rolePFET {
+					c.pfets = append(c.pfets, t)
+				} else {
+					c.nfets = append(c.nfets, t)
+				}
+			}
+		}
+	}
+	c.parts = parts[:at]
+	pre := map[Topology][]Elimination{}
+	for k := range pfs {
+		pf := &pfs[k]
+		if pf.label == "" {
+			continue
+		}
+		if d := total[k] - have[k]; d > 0 {
+			for _, t := range pf.topos {
+				pre[t] = append(pre[t], Elimination{Check: pf.label, Role: pf.role, Count: d})
+			}
+		}
+	}
+	return c, pre, nil
+}
+
+// The record slices of a Catalog, as NewCatalog sorts parts into them.
+const (
+	roleDiode = iota // rectifier and Schottky
+	roleZener
+	roleFuse
+	rolePFET
+	roleNFET
+)
+
+// roleOf returns the record slice of a column set's parts, -1 when no
+// topology uses them.
+func roleOf(cs *catalog.ColumnSet) int {
+	typ := strings.ToLower(cs.Type)
+	switch cs.Kind {
+	case catalog.Diode:
+		switch typ {
+		case "rectifier", "schottky":
+			return roleDiode
+		case "zener":
+			return roleZener
+		}
+	case catalog.Fuse:
+		return roleFuse
+	case catalog.MOSFET:
+		switch typ {
+		case "p":
+			return rolePFET
+		case "n":
+			return roleNFET
+		}
+	}
+	return -1
+}
+
+// errColumns marks a failure of the column file, after which Pick reads
+// the parts through SQL.
+var errColumns = errors.New("catalog columns unavailable")
+
+// pickColumns is Pick on a catalog's column view.
+func pickColumns(ctx context.Context, v viewer, s *spec.Spec, opt Options) (*Result, error) {
+	view, err := v.View(ctx)
+	if err != nil {
+		return nil, fmt.Errorf("pick: %w", err)
+	}
+	defer view.Close()
+	cat, pre, err := loadColumns(ctx, view, s, opt.withDefaults())
+	if err != nil {
+		return nil, fmt.Errorf("pick: %w: %w", errColumns, err)
+	}
+	r := Evaluate(s, cat, opt)
+	if err := cat.lazy.err; err != nil {
+		return nil, fmt.Errorf("pick: reading the parts shown: %w", err)
+	}
+	mergePre(r, &loaded{pre: pre})
+	return r, nil
 }

@@ -1,0 +1,657 @@
+package catalog
+
+import (
+	"bufio"
+	"context"
+	"database/sql"
+	"encoding/binary"
+	"errors"
+	"fmt"
+	"hash"
+	"hash/crc32"
+	"io"
+	"math"
+	"math/bits"
+	"os"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+)
+
+// The column file: a typed, columnar copy of the catalog's number fields,
+// for the scans that read every part of a kind (`partsieve pick`). Reading
+// a million rows through SQLite costs seconds (each row is a wide record
+// of the parts table, read and converted column by column); the same
+// numbers read from a packed file cost a small fraction of that.
+//
+// The file, <catalog>.cols, is a cache: SQLite stays the truth. It
+// records the catalog generation (meta) and the largest part id it
+// reflects, and is used only while both match the reading transaction;
+// otherwise the reader rebuilds it from that transaction (and saves it
+// when it can). An import refreshes it after its commit, like the text
+// index. It is written to a temporary file and renamed, so a reader
+// sees a whole old or a whole new file; a damaged file fails its
+// checksums and is rebuilt.
+//
+// Layout (little-endian):
+//
+//	magic "PSCOLS03"
+//	gen int64, maxID int64, nsets uint32
+//	per set: kind, type (uvarint length + bytes), rows uint32,
+//	         nfields uint32, per field: name, present uint32;
+//	         offset uint64, length uint64, crc32 (IEEE) of the payload
+//	payloads, one per set, rows in the catalog's canonical order
+//	(normalised part number, then maker: the order of the identity
+//	index):
+//	         id int64, ord uint32 (position in that order over the whole
+//	         catalog), mask uint64 (bit k: field k present),
+//	         the present values as float64 bits,
+//	         mfr, mpn, fuse_std, rerate (uvarint length + bytes)
+//
+// A set holds the parts of one kind and type; its fields are the Number
+// fields of the kind (Fields order), at most 64.
+
+var colsMagic = []byte("PSCOLS03")
+
+// ColumnSet holds the parts of one kind and type in canonical order:
+// normalised part number, then normalised maker (NormKey).
+type ColumnSet struct {
+	Kind Kind
+	Type string
+	ID   []int64
+	// Ord is each part's position in the canonical order over all sets,
+	// for merging sets.
+	Ord []uint32
+	Mfr []string
+	MPN []string
+	// FuseStd and Rerate are the fuse text fields (nil for other kinds).
+	FuseStd []string
+	Rerate  []string
+	// Fields are the Number fields present in at least one row; Num[k][i]
+	// is field Fields[k] of row i, NaN when absent.
+	Fields []string
+	Num    [][]float64
+}
+
+// Len returns the number of parts of the set.
+func (cs *ColumnSet) Len() int { return len(cs.ID) }
+
+// Col returns the column of a Number field, nil when no part of the set
+// has it.
+func (cs *ColumnSet) Col(name string) []float64 {
+	for k, f := range cs.Fields {
+		if f == name {
+			return cs.Num[k]
+		}
+	}
+	return nil
+}
+
+// Columns is a columnar copy of some sets of the catalog at generation
+// Gen.
+type Columns struct {
+	Gen  int64
+	Sets []*ColumnSet
+}
+
+// setInfo is one entry of the file's directory.
+type setInfo struct {
+	kind    Kind
+	typ     string
+	rows    uint32
+	fields  []string // the kind's Number fields
+	present []uint32 // per field: rows that have it
+	offset  uint64
+	length  uint64
+	crc     uint32
+}
+
+// kindNumFields returns the Number fields of kind k, in dictionary order.
+func kindNumFields(k Kind) []string {
+	var out []string
+	for i := range Fields {
+		f := &Fields[i]
+		if f.Type == Number && f.AppliesTo(k) {
+			out = append(out, f.Name)
+		}
+	}
+	return out
+}
+
+func (s *Store) colsPath() string { return s.Path + ".cols" }
+
+// View is a consistent read of the catalog: one read transaction, for
+// callers that read the column file and then some parts in full.
+type View struct {
+	s   *Store
+	tx  *sql.Tx
+	Gen int64
+	max int64
+}
+
+// View begins a read transaction. Close it when done.
+func (s *Store) View(ctx context.Context) (*View, error) {
+	tx, err := s.db.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
+	if err != nil {
+		return nil, fmt.Errorf("catalog %s: %w", s.Path, err)
+	}
+	v := &View{s: s, tx: tx}
+	if v.Gen, err = generation(ctx, tx); err == nil {
+		var m sql.NullInt64
+		err = tx.QueryRowContext(ctx, `SELECT max(id) FROM parts`).Scan(&m)
+		v.max = m.Int64
+	}
+	if err != nil {
+		tx.Rollback()
+		return nil, fmt.Errorf("catalog %s: %w", s.Path, err)
+	}
+	return v, nil
+}
+
+// Close ends the view's transaction.
+func (v *View) Close() error { return v.tx.Rollback() }
+
+// Parts returns the parts with the given ids, in full with their offers,
+// in the order of ids; ids not in the catalog are left out.
+func (v *View) Parts(ctx context.Context, ids []int64) ([]Part, []int64, error) {
+	if len(ids) == 0 {
+		return nil, nil, nil
+	}
+	ps, got, err := scanParts(ctx, v.tx, `SELECT parts.id, `+partJSON()+` FROM json_each(?) AS t CROSS JOIN parts ON parts.id = t.value ORDER BY t.key`, idsJSON(ids))
+	if err == nil {
+		err = loadOffers(ctx, v.tx, ps, got)
+	}
+	if err != nil {
+		return nil, nil, fmt.Errorf("catalog %s: %w", v.s.Path, err)
+	}
+	return ps, got, nil
+}
+
+// Columns returns the column sets that want accepts (nil: all), from the
+// column file when it matches the view, else rebuilt from the view's
+// transaction (and saved for the next reader when possible).
+func (v *View) Columns(ctx context.Context, want func(k Kind, typ string) bool) (*Columns, error) {
+	if c, err := readColumns(v.s.colsPath(), v.Gen, v.max, want); err == nil {
+		return c, nil
+	}
+	path, err := v.s.writeColumns(ctx, v.tx, v.Gen, v.max)
+	if err != nil {
+		return nil, fmt.Errorf("catalog %s: column file: %w", v.s.Path, err)
+	}
+	c, err := readColumns(path, v.Gen, v.max, want)
+	if path != v.s.colsPath() {
+		os.Remove(path)
+	}
+	if err != nil {
+		return nil, fmt.Errorf("catalog %s: column file: %w", v.s.Path, err)
+	}
+	return c, nil
+}
+
+// RefreshColumns rewrites the column file from the current catalog when
+// it does not match it. Failure leaves the file stale (rebuilt by its next
+// reader); the error says why.
+func (s *Store) RefreshColumns(ctx context.Context) error {
+	v, err := s.View(ctx)
+	if err != nil {
+		return err
+	}
+	defer v.Close()
+	if _, err := readColumnsHeader(s.colsPath(), v.Gen, v.max); err == nil {
+		return nil
+	}
+	path, err := s.writeColumns(ctx, v.tx, v.Gen, v.max)
+	if err != nil {
+		return err
+	}
+	if path != s.colsPath() {
+		os.Remove(path)
+		return errors.New("the column file could not be saved")
+	}
+	return nil
+}
+
+// refreshColumnsAfterChange brings the column file up to date after a
+// committed change; a failure only leaves it stale (its next reader
+// rebuilds it), so it is reported, not returned.
+func (s *Store) refreshColumnsAfterChange(ctx context.Context) {
+	if err := s.RefreshColumns(ctx); err != nil && ctx.Err() == nil {
+		s.notify("column file not refreshed (%v); the next pick rebuilds it", err)
+	}
+}
+
+// cleanColumnLeftovers removes temporary column files of processes that
+// are gone.
+func cleanColumnLeftovers(path string) {
+	tmps, _ := filepath.Glob(path + ".tmp-*")
+	for _, t := range tmps {
+		rest := strings.TrimPrefix(t, path+".tmp-")
+		pid, err := strconv.Atoi(strings.SplitN(rest, "-", 2)[0])
+		if err != nil || !processAlive(pid) {
+			os.Remove(t)
+		}
+	}
+}
+
+// spill is one set's payload while the file is written.
+type spill struct {
+	info setInfo
+	f    *os.File
+	w    *bufio.Writer
+	crc  hash.Hash32
+}
+
+// writeColumns writes the column file of the catalog as seen by q (one
+// transaction at generation gen) to a temporary file and renames it into
+// place. It returns the path of the file written: the column file, or
+// the temporary file when it could not be renamed (the caller reads and
+// removes it).
+func (s *Store) writeColumns(ctx context.Context, q queryer, gen, maxID int64) (string, error) {
+	final := s.colsPath()
+	cleanColumnLeftovers(final)
+	tmpDir := filepath.Dir(final)
+	prefix := filepath.Base(final) + ".tmp-" + strconv.Itoa(os.Getpid()) + "-"
+	kindFields := map[Kind][]string{}
+	var cols []string
+	for _, k := range Kinds {
+		kindFields[k] = kindNumFields(k)
+	}
+	numIdx := map[string]int{}
+	for i := range Fields {
+		if Fields[i].Type == Number {
+			numIdx[Fields[i].Name] = len(cols)
+			cols = append(cols, qcol(Fields[i].Name))
+		}
+	}
+	stmt := `SELECT parts.id, parts."kind", parts."type", parts."mfr", parts."mpn", parts."fuse_std", parts."rerate", ` +
+		strings.Join(cols, ", ") + ` FROM parts ORDER BY parts.mpn_key, parts.mfr_key`
+	rows, err := q.QueryContext(ctx, stmt)
+	if err != nil {
+		return "", err
+	}
+	defer rows.Close()
+	sets := map[string]*spill{}
+	var order []*spill
+	defer func() {
+		for _, sp := range order {
+			sp.f.Close()
+			os.Remove(sp.f.Name())
+		}
+	}()
+	var id int64
+	var kind, typ, mfr, mpn, fstd, rer sql.NullString
+	nums := make([]sql.NullFloat64, len(cols))
+	dest := []any{&id, &kind, &typ, &mfr, &mpn, &fstd, &rer}
+	for i := range nums {
+		dest = append(dest, &nums[i])
+	}
+	var buf []byte
+	var ord uint32
+	for rows.Next() {
+		if err := rows.Scan(dest...); err != nil {
+			return "", err
+		}
+		k := Kind(kind.String)
+		fields, ok := kindFields[k]
+		if !ok {
+			continue // not a kind of the dictionary; Put never stores one
+		}
+		key := kind.String + "\x00" + typ.String
+		sp := sets[key]
+		if sp == nil {
+			f, err := os.CreateTemp(tmpDir, prefix+"set-")
+			if err != nil {
+				return "", err
+			}
+			sp = &spill{info: setInfo{kind: k, typ: typ.String, fields: fields, present: make([]uint32, len(fields))}, f: f, crc: crc32.NewIEEE()}
+			sp.w = bufio.NewWriterSize(io.MultiWriter(f, sp.crc), 1<<16)
+			sets[key] = sp
+			order = append(order, sp)
+		}
+		buf = buf[:0]
+		buf = binary.LittleEndian.AppendUint64(buf, uint64(id))
+		buf = binary.LittleEndian.AppendUint32(buf, ord)
+		ord++
+		var mask uint64
+		for j, name := range fields {
+			if nums[numIdx[name]].Valid {
+				mask |= 1 << j
+				sp.info.present[j]++
+			}
+		}
+		buf = binary.LittleEndian.AppendUint64(buf, mask)
+		for j, name := range fields {
+			if mask&(1<<j) != 0 {
+				buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(nums[numIdx[name]].Float64))
+			}
+		}
+		for _, t := range [4]string{mfr.String, mpn.String, fstd.String, rer.String} {
+			buf = binary.AppendUvarint(buf, uint64(len(t)))
+			buf = append(buf, t...)
+		}
+		if _, err := sp.w.Write(buf); err != nil {
+			return "", err
+		}
+		sp.info.rows++
+		sp.info.length += uint64(len(buf))
+	}
+	if err := rows.Err(); err != nil {
+		return "", err
+	}
+	slices.SortFunc(order, func(a, b *spill) int {
+		if c := strings.Compare(string(a.info.kind), string(b.info.kind)); c != 0 {
+			return c
+		}
+		return strings.Compare(a.info.typ, b.info.typ)
+	})
+	infos := make([]setInfo, len(order))
+	for i, sp := range order {
+		if err := sp.w.Flush(); err != nil {
+			return "", err
+		}
+		sp.info.crc = sp.crc.Sum32()
+		infos[i] = sp.info
+	}
+	head := encodeHeader(gen, maxID, infos)
+	off := uint64(len(head))
+	for i := range infos {
+		infos[i].offset = off
+		off += infos[i].length
+	}
+	head = encodeHeader(gen, maxID, infos) // same length: offsets are fixed-size
+	out, err := os.CreateTemp(tmpDir, prefix)
+	if err != nil {
+		return "", err
+	}
+	ok := false
+	defer func() {
+		if !ok {
+			out.Close()
+			os.Remove(out.Name())
+		}
+	}()
+	w := bufio.NewWriterSize(out, 1<<16)
+	if _, err := w.Write(head); err != nil {
+		return "", err
+	}
+	for _, sp := range order {
+		if _, err := sp.f.Seek(0, io.SeekStart); err != nil {
+			return "", err
+		}
+		if _, err := io.Copy(w, sp.f); err != nil {
+			return "", err
+		}
+	}
+	if err := w.Flush(); err != nil {
+		return "", err
+	}
+	if err := out.Close(); err != nil {
+		return "", err
+	}
+	ok = true
+	mode := os.FileMode(0o644)
+	if st, err := os.Stat(s.Path); err == nil {
+		mode = st.Mode().Perm()
+	}
+	os.Chmod(out.Name(), mode)
+	if err := os.Rename(out.Name(), final); err != nil {
+		return out.Name(), nil
+	}
+	return final, nil
+}
+
+func appendString(b []byte, s string) []byte {
+	b = binary.AppendUvarint(b, uint64(len(s)))
+	return append(b, s...)
+}
+
+func encodeHeader(gen, maxID int64, infos []setInfo) []byte {
+	b := append([]byte(nil), colsMagic...)
+	b = binary.LittleEndian.AppendUint64(b, uint64(gen))
+	b = binary.LittleEndian.AppendUint64(b, uint64(maxID))
+	b = binary.LittleEndian.AppendUint32(b, uint32(len(infos)))
+	for _, in := range infos {
+		b = appendString(b, string(in.kind))
+		b = appendString(b, in.typ)
+		b = binary.LittleEndian.AppendUint32(b, in.rows)
+		b = binary.LittleEndian.AppendUint32(b, uint32(len(in.fields)))
+		for j, f := range in.fields {
+			b = appendString(b, f)
+			b = binary.LittleEndian.AppendUint32(b, in.present[j])
+		}
+		b = binary.LittleEndian.AppendUint64(b, in.offset)
+		b = binary.LittleEndian.AppendUint64(b, in.length)
+		b = binary.LittleEndian.AppendUint32(b, in.crc)
+	}
+	return b
+}
+
+// errStale means the column file is missing, damaged or of another
+// catalog state.
+var errStale = errors.New("column file missing, damaged or stale")
+
+// reader decodes the header with bounds checks.
+type hreader struct {
+	r   *bufio.Reader
+	err error
+}
+
+func (h *hreader) u32() uint32 {
+	var b [4]byte
+	if h.err == nil {
+		_, h.err = io.ReadFull(h.r, b[:])
+	}
+	return binary.LittleEndian.Uint32(b[:])
+}
+
+func (h *hreader) u64() uint64 {
+	var b [8]byte
+	if h.err == nil {
+		_, h.err = io.ReadFull(h.r, b[:])
+	}
+	return binary.LittleEndian.Uint64(b[:])
+}
+
+func (h *hreader) str() string {
+	if h.err != nil {
+		return ""
+	}
+	n, err := binary.ReadUvarint(h.r)
+	if err != nil || n > 1<<16 {
+		h.err = errStale
+		return ""
+	}
+	b := make([]byte, n)
+	_, h.err = io.ReadFull(h.r, b)
+	return string(b)
+}
+
+// readColumnsHeader opens path and checks its header against the
+// catalog state (gen, maxID).
+func readColumnsHeader(path string, gen, maxID int64) ([]setInfo, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, errStale
+	}
+	defer f.Close()
+	st, err := f.Stat()
+	if err != nil {
+		return nil, errStale
+	}
+	return parseHeader(bufio.NewReader(f), st.Size(), gen, maxID)
+}
+
+func parseHeader(r *bufio.Reader, size, gen, maxID int64) ([]setInfo, error) {
+	magic := make([]byte, len(colsMagic))
+	if _, err := io.ReadFull(r, magic); err != nil || string(magic) != string(colsMagic) {
+		return nil, errStale
+	}
+	h := &hreader{r: r}
+	g, m, n := int64(h.u64()), int64(h.u64()), h.u32()
+	if h.err != nil || g != gen || m != maxID || n > 1<<12 {
+		return nil, errStale
+	}
+	infos := make([]setInfo, n)
+	for i := range infos {
+		in := &infos[i]
+		in.kind = Kind(h.str())
+		in.typ = h.str()
+		in.rows = h.u32()
+		nf := h.u32()
+		if h.err != nil || nf > 64 {
+			return nil, errStale
+		}
+		for range nf {
+			in.fields = append(in.fields, h.str())
+			in.present = append(in.present, h.u32())
+		}
+		in.offset, in.length, in.crc = h.u64(), h.u64(), h.u32()
+		if h.err != nil || in.offset > uint64(size) || in.length > uint64(size)-in.offset {
+			return nil, errStale
+		}
+	}
+	return infos, nil
+}
+
+// readColumns reads the sets want accepts from the column file at path,
+// which must match (gen, maxID).
+func readColumns(path string, gen, maxID int64, want func(Kind, string) bool) (*Columns, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, errStale
+	}
+	defer f.Close()
+	st, err := f.Stat()
+	if err != nil {
+		return nil, errStale
+	}
+	infos, err := parseHeader(bufio.NewReader(f), st.Size(), gen, maxID)
+	if err != nil {
+		return nil, err
+	}
+	c := &Columns{Gen: gen}
+	for i := range infos {
+		in := &infos[i]
+		if want != nil && !want(in.kind, in.typ) {
+			continue
+		}
+		cs, err := readSet(f, in)
+		if err != nil {
+			return nil, err
+		}
+		c.Sets = append(c.Sets, cs)
+	}
+	return c, nil
+}
+
+// readSet decodes one set's payload into columns.
+func readSet(f *os.File, in *setInfo) (*ColumnSet, error) {
+	n := int(in.rows)
+	if uint64(n)*20 > in.length || in.length > 1<<40 {
+		return nil, errStale
+	}
+	buf := make([]byte, in.length)
+	if _, err := f.ReadAt(buf, int64(in.offset)); err != nil {
+		return nil, errStale
+	}
+	if crc32.ChecksumIEEE(buf) != in.crc {
+		return nil, errStale
+	}
+	cs := &ColumnSet{Kind: in.kind, Type: in.typ, ID: make([]int64, n), Ord: make([]uint32, n), Mfr: make([]string, n), MPN: make([]string, n)}
+	isFuse := in.kind == Fuse
+	if isFuse {
+		cs.FuseStd, cs.Rerate = make([]string, n), make([]string, n)
+	}
+	// columns only for fields some row has; slot[j] is the column of
+	// file field j, -1 when none
+	slot := make([]int, len(in.fields))
+	for j, name := range in.fields {
+		slot[j] = -1
+		if in.present[j] > 0 {
+			slot[j] = len(cs.Fields)
+			cs.Fields = append(cs.Fields, name)
+			col := make([]float64, n)
+			for i := range col {
+				col[i] = math.NaN()
+			}
+			cs.Num = append(cs.Num, col)
+		}
+	}
+	intern := map[string]string{}
+	internStr := func(b []byte) string {
+		if s, ok := intern[string(b)]; ok {
+			return s
+		}
+		s := string(b)
+		if len(intern) < 1<<14 {
+			intern[s] = s
+		}
+		return s
+	}
+	// part numbers share one string per set
+	mpnAll := make([]byte, 0, n*12)
+	mpnEnd := make([]int, n)
+	pos := 0
+	text := func() ([]byte, bool) {
+		l, k := binary.Uvarint(buf[pos:])
+		if k <= 0 || l > uint64(len(buf)-pos-k) {
+			return nil, false
+		}
+		t := buf[pos+k : pos+k+int(l)]
+		pos += k + int(l)
+		return t, true
+	}
+	for i := 0; i < n; i++ {
+		if len(buf)-pos < 20 {
+			return nil, errStale
+		}
+		cs.ID[i] = int64(binary.LittleEndian.Uint64(buf[pos:]))
+		cs.Ord[i] = binary.LittleEndian.Uint32(buf[pos+8:])
+		mask := binary.LittleEndian.Uint64(buf[pos+12:])
+		pos += 20
+		if bits.Len64(mask) > len(in.fields) || len(buf)-pos < 8*bits.OnesCount64(mask) {
+			return nil, errStale
+		}
+		for m := mask; m != 0; m &= m - 1 {
+			j := bits.TrailingZeros64(m)
+			if slot[j] < 0 {
+				return nil, errStale
+			}
+			cs.Num[slot[j]][i] = math.Float64frombits(binary.LittleEndian.Uint64(buf[pos:]))
+			pos += 8
+		}
+		t, ok := text()
+		if !ok {
+			return nil, errStale
+		}
+		cs.Mfr[i] = internStr(t)
+		if t, ok = text(); !ok {
+			return nil, errStale
+		}
+		mpnAll = append(mpnAll, t...)
+		mpnEnd[i] = len(mpnAll)
+		if t, ok = text(); !ok {
+			return nil, errStale
+		}
+		if isFuse {
+			cs.FuseStd[i] = internStr(t)
+		}
+		if t, ok = text(); !ok {
+			return nil, errStale
+		}
+		if isFuse {
+			cs.Rerate[i] = internStr(t)
+		}
+	}
+	if pos != len(buf) {
+		return nil, errStale // longer than its rows
+	}
+	all := string(mpnAll)
+	start := 0
+	for i, end := range mpnEnd {
+		cs.MPN[i] = all[start:end]
+		start = end
+	}
+	return cs, nil
+}
