@@ -216,7 +216,7 @@ func (s *Store) indexState() (gen int64, ok bool, err error) {
 	return g, ok, nil
 }
 
-// Reindex rebuilds the text index from the catalog.
+// Reindex rebuilds the text index and the column file from the catalog.
 func (s *Store) Reindex(ctx context.Context) error {
 	s.mu.Lock()
 	defer s.mu.Unlock()
@@ -226,6 +226,10 @@ func (s *Store) Reindex(ctx context.Context) error {
 	}
 	if err != nil {
 		return fmt.Errorf("catalog %s: %w", s.Path, err)
+	}
+	os.Remove(s.colsPath()) // rebuilt from scratch as well
+	if err := s.RefreshColumns(ctx); err != nil {
+		return fmt.Errorf("catalog %s: column file: %w", s.Path, err)
 	}
 	return nil
 }

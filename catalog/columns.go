@@ -14,9 +14,11 @@ import (
 	"math/bits"
 	"os"
 	"path/filepath"
+	"runtime"
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
 )
 
 // The column file: a typed, columnar copy of the catalog's number fields,
@@ -36,11 +38,11 @@ import (
 //
 // Layout (little-endian):
 //
-//	magic "PSCOLS03"
+//	magic "PSCOLS04"
 //	gen int64, maxID int64, nsets uint32
 //	per set: kind, type (uvarint length + bytes), rows uint32,
 //	         nfields uint32, per field: name, present uint32;
-//	         offset uint64, length uint64, crc32 (IEEE) of the payload
+//	         offset uint64, length uint64, CRC-32C (Castagnoli) of the payload
 //	payloads, one per set, rows in the catalog's canonical order
 //	(normalised part number, then maker: the order of the identity
 //	index):
@@ -52,7 +54,10 @@ import (
 // A set holds the parts of one kind and type; its fields are the Number
 // fields of the kind (Fields order), at most 64.
 
-var colsMagic = []byte("PSCOLS03")
+var colsMagic = []byte("PSCOLS04")
+
+// castagnoli is the CRC-32C table (hardware-assisted on common CPUs).
+var castagnoli = crc32.MakeTable(crc32.Castagnoli)
 
 // ColumnSet holds the parts of one kind and type in canonical order:
 // normalised part number, then normalised maker (NormKey).
@@ -166,6 +171,24 @@ func (v *View) Parts(ctx context.Context, ids []int64) ([]Part, []int64, error) 
 		return nil, nil, fmt.Errorf("catalog %s: %w", v.s.Path, err)
 	}
 	return ps, got, nil
+}
+
+// Offers returns the offers of the parts with the given ids, by id.
+func (v *View) Offers(ctx context.Context, ids []int64) (map[int64][]Offer, error) {
+	out := make(map[int64][]Offer, len(ids))
+	if len(ids) == 0 {
+		return out, nil
+	}
+	ps := make([]Part, len(ids))
+	if err := loadOffers(ctx, v.tx, ps, ids); err != nil {
+		return nil, fmt.Errorf("catalog %s: offers: %w", v.s.Path, err)
+	}
+	for i := range ps {
+		if len(ps[i].Offers) > 0 {
+			out[ids[i]] = ps[i].Offers
+		}
+	}
+	return out, nil
 }
 
 // Columns returns the column sets that want accepts (nil: all), from the
@@ -304,7 +327,7 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, gen, maxID int64) (
 			if err != nil {
 				return "", err
 			}
-			sp = &spill{info: setInfo{kind: k, typ: typ.String, fields: fields, present: make([]uint32, len(fields))}, f: f, crc: crc32.NewIEEE()}
+			sp = &spill{info: setInfo{kind: k, typ: typ.String, fields: fields, present: make([]uint32, len(fields))}, f: f, crc: crc32.New(castagnoli)}
 			sp.w = bufio.NewWriterSize(io.MultiWriter(f, sp.crc), 1<<16)
 			sets[key] = sp
 			order = append(order, sp)
@@ -530,19 +553,37 @@ func readColumns(path string, gen, maxID int64, want func(Kind, string) bool) (*
 	if err != nil {
 		return nil, err
 	}
-	c := &Columns{Gen: gen}
+	// sets are decoded in parallel (ReadAt is safe for concurrent use)
+	var sel []*setInfo
 	for i := range infos {
-		in := &infos[i]
-		if want != nil && !want(in.kind, in.typ) {
-			continue
+		if want == nil || want(infos[i].kind, infos[i].typ) {
+			sel = append(sel, &infos[i])
 		}
-		cs, err := readSet(f, in)
+	}
+	sets := make([]*ColumnSet, len(sel))
+	errs := make([]error, len(sel))
+	next := make(chan int, len(sel))
+	for i := range sel {
+		next <- i
+	}
+	close(next)
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), len(sel)) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range next {
+				sets[i], errs[i] = readSet(f, sel[i])
+			}
+		}()
+	}
+	wg.Wait()
+	for _, err := range errs {
 		if err != nil {
 			return nil, err
 		}
-		c.Sets = append(c.Sets, cs)
 	}
-	return c, nil
+	return &Columns{Gen: gen, Sets: sets}, nil
 }
 
 // readSet decodes one set's payload into columns.
@@ -555,7 +596,7 @@ func readSet(f *os.File, in *setInfo) (*ColumnSet, error) {
 	if _, err := f.ReadAt(buf, int64(in.offset)); err != nil {
 		return nil, errStale
 	}
-	if crc32.ChecksumIEEE(buf) != in.crc {
+	if crc32.Checksum(buf, castagnoli) != in.crc {
 		return nil, errStale
 	}
 	cs := &ColumnSet{Kind: in.kind, Type: in.typ, ID: make([]int64, n), Ord: make([]uint32, n), Mfr: make([]string, n), MPN: make([]string, n)}

@@ -511,7 +511,7 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 		for i := range list {
 			ps[i], ids[i] = list[i].z.p, list[i].z.cid
 		}
-		e.cat.need(ps, ids)
+		e.cat.needOffers(ps, ids)
 	}
 	if e.opt.Rank == RankCost {
 		fetch(win)

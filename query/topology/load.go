@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime/debug"
 	"slices"
 	"strings"
 
@@ -390,9 +391,10 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 		}
 	}
 	c := &Catalog{parts: parts, diodes: make([]diodeRec, 0, nr[roleDiode]), zeners: make([]diodeRec, 0, nr[roleZener]),
-		fuses: make([]fuseRec, 0, nr[roleFuse]), pfets: make([]fetRec, 0, nr[rolePFET]), nfets: make([]fetRec, 0, nr[roleNFET]), lazy: &lazyParts{fetch: func(ids []int64) ([]catalog.Part, []int64, error) {
-			return view.Parts(ctx, ids)
-		}}}
+		fuses: make([]fuseRec, 0, nr[roleFuse]), pfets: make([]fetRec, 0, nr[rolePFET]), nfets: make([]fetRec, 0, nr[roleNFET]), lazy: &lazyParts{
+			fetch:  func(ids []int64) ([]catalog.Part, []int64, error) { return view.Parts(ctx, ids) },
+			offers: func(ids []int64) (map[int64][]catalog.Offer, error) { return view.Offers(ctx, ids) },
+		}}
 	// each role's records in canonical order: a merge of its sets by Ord
 	rcs := make([][numFields][]float64, len(cols.Sets))
 	roles := make([][]int, 5)
@@ -513,6 +515,10 @@ var errColumns = errors.New("catalog columns unavailable")
 
 // pickColumns is Pick on a catalog's column view.
 func pickColumns(ctx context.Context, v viewer, s *spec.Spec, opt Options) (*Result, error) {
+	// A pick allocates its working set (a few hundred MB at a million
+	// parts) in one go and drops it at the end: collections during the
+	// load would only trace the growing set again and again.
+	defer debug.SetGCPercent(debug.SetGCPercent(400))
 	view, err := v.View(ctx)
 	if err != nil {
 		return nil, fmt.Errorf("pick: %w", err)

@@ -32,12 +32,15 @@ type Catalog struct {
 	lazy *lazyParts
 }
 
-// lazyParts fetches and keeps the full forms of light parts.
+// lazyParts fetches and keeps the full forms of light parts, or only
+// their offers where only a cost is needed.
 type lazyParts struct {
-	fetch func(ids []int64) ([]catalog.Part, []int64, error)
-	mu    sync.Mutex
-	full  map[*catalog.Part]*catalog.Part
-	err   error
+	fetch  func(ids []int64) ([]catalog.Part, []int64, error)
+	offers func(ids []int64) (map[int64][]catalog.Offer, error)
+	mu     sync.Mutex
+	full   map[*catalog.Part]*catalog.Part
+	priced map[*catalog.Part]*catalog.Part // light part with its offers
+	err    error
 }
 
 // need makes sure the full forms of the light parts ps (ids[i] is the id
@@ -82,7 +85,46 @@ func (c *Catalog) need(ps []*catalog.Part, ids []int64) {
 	}
 }
 
-// detail returns the full form of p when it was fetched, else p.
+// needOffers makes sure the offers of the light parts ps are at hand (for
+// their cost), without reading the parts in full.
+func (c *Catalog) needOffers(ps []*catalog.Part, ids []int64) {
+	lz := c.lazy
+	if lz == nil {
+		return
+	}
+	lz.mu.Lock()
+	defer lz.mu.Unlock()
+	var want []int64
+	for i, p := range ps {
+		if lz.full[p] == nil && lz.priced[p] == nil {
+			want = append(want, ids[i])
+		}
+	}
+	if len(want) == 0 {
+		return
+	}
+	got, err := lz.offers(want)
+	if err != nil {
+		if lz.err == nil {
+			lz.err = err
+		}
+		return
+	}
+	if lz.priced == nil {
+		lz.priced = map[*catalog.Part]*catalog.Part{}
+	}
+	for i, p := range ps {
+		if lz.full[p] != nil || lz.priced[p] != nil {
+			continue
+		}
+		cp := *p
+		cp.Offers = got[ids[i]]
+		lz.priced[p] = &cp
+	}
+}
+
+// detail returns the full form of p when it was fetched, else p with its
+// offers when those were, else p.
 func (c *Catalog) detail(p *catalog.Part) *catalog.Part {
 	lz := c.lazy
 	if lz == nil {
@@ -92,6 +134,9 @@ func (c *Catalog) detail(p *catalog.Part) *catalog.Part {
 	defer lz.mu.Unlock()
 	if fp := lz.full[p]; fp != nil {
 		return fp
+	}
+	if pp := lz.priced[p]; pp != nil {
+		return pp
 	}
 	return p
 }
