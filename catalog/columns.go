@@ -28,8 +28,11 @@ import (
 // numbers read from a packed file cost a small fraction of that.
 //
 // The file, <catalog>.cols, is a cache: SQLite stays the truth. It
-// records the catalog generation (meta) and the largest part id it
-// reflects, and is used only while both match the reading transaction;
+// records the catalog state it reflects: the generation (meta), the
+// largest part id and the time of the latest import (so that a catalog
+// deleted and built again, or another catalog file copied in its place,
+// does not match by chance), and is used only while all three match the
+// reading transaction;
 // otherwise the reader rebuilds it from that transaction (and saves it
 // when it can). An import refreshes it after its commit, like the text
 // index. It is written to a temporary file and renamed, so a reader
@@ -39,7 +42,7 @@ import (
 // Layout (little-endian):
 //
 //	magic "PSCOLS04"
-//	gen int64, maxID int64, nsets uint32
+//	gen int64, maxID int64, stamp (uvarint length + bytes), nsets uint32
 //	per set: kind, type (uvarint length + bytes), rows uint32,
 //	         nfields uint32, per field: name, present uint32;
 //	         offset uint64, length uint64, CRC-32C (Castagnoli) of the payload
@@ -132,7 +135,13 @@ type View struct {
 	s   *Store
 	tx  *sql.Tx
 	Gen int64
-	max int64
+	st  colStamp
+}
+
+// colStamp is the catalog state a column file reflects.
+type colStamp struct {
+	gen, maxID int64
+	sources    string // time of the latest import
 }
 
 // View begins a read transaction. Close it when done.
@@ -144,8 +153,9 @@ func (s *Store) View(ctx context.Context) (*View, error) {
 	v := &View{s: s, tx: tx}
 	if v.Gen, err = generation(ctx, tx); err == nil {
 		var m sql.NullInt64
-		err = tx.QueryRowContext(ctx, `SELECT max(id) FROM parts`).Scan(&m)
-		v.max = m.Int64
+		var t sql.NullString
+		err = tx.QueryRowContext(ctx, `SELECT (SELECT max(id) FROM parts), (SELECT max(time) FROM sources)`).Scan(&m, &t)
+		v.st = colStamp{gen: v.Gen, maxID: m.Int64, sources: t.String}
 	}
 	if err != nil {
 		tx.Rollback()
@@ -195,14 +205,14 @@ func (v *View) Offers(ctx context.Context, ids []int64) (map[int64][]Offer, erro
 // column file when it matches the view, else rebuilt from the view's
 // transaction (and saved for the next reader when possible).
 func (v *View) Columns(ctx context.Context, want func(k Kind, typ string) bool) (*Columns, error) {
-	if c, err := readColumns(v.s.colsPath(), v.Gen, v.max, want); err == nil {
+	if c, err := readColumns(v.s.colsPath(), v.st, want); err == nil {
 		return c, nil
 	}
-	path, err := v.s.writeColumns(ctx, v.tx, v.Gen, v.max)
+	path, err := v.s.writeColumns(ctx, v.tx, v.st)
 	if err != nil {
 		return nil, fmt.Errorf("catalog %s: column file: %w", v.s.Path, err)
 	}
-	c, err := readColumns(path, v.Gen, v.max, want)
+	c, err := readColumns(path, v.st, want)
 	if path != v.s.colsPath() {
 		os.Remove(path)
 	}
@@ -221,10 +231,10 @@ func (s *Store) RefreshColumns(ctx context.Context) error {
 		return err
 	}
 	defer v.Close()
-	if _, err := readColumnsHeader(s.colsPath(), v.Gen, v.max); err == nil {
+	if _, err := readColumnsHeader(s.colsPath(), v.st); err == nil {
 		return nil
 	}
-	path, err := s.writeColumns(ctx, v.tx, v.Gen, v.max)
+	path, err := s.writeColumns(ctx, v.tx, v.st)
 	if err != nil {
 		return err
 	}
@@ -270,7 +280,7 @@ type spill struct {
 // place. It returns the path of the file written: the column file, or
 // the temporary file when it could not be renamed (the caller reads and
 // removes it).
-func (s *Store) writeColumns(ctx context.Context, q queryer, gen, maxID int64) (string, error) {
+func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (string, error) {
 	final := s.colsPath()
 	cleanColumnLeftovers(final)
 	tmpDir := filepath.Dir(final)
@@ -376,13 +386,13 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, gen, maxID int64) (
 		sp.info.crc = sp.crc.Sum32()
 		infos[i] = sp.info
 	}
-	head := encodeHeader(gen, maxID, infos)
+	head := encodeHeader(st, infos)
 	off := uint64(len(head))
 	for i := range infos {
 		infos[i].offset = off
 		off += infos[i].length
 	}
-	head = encodeHeader(gen, maxID, infos) // same length: offsets are fixed-size
+	head = encodeHeader(st, infos) // same length: offsets are fixed-size
 	out, err := os.CreateTemp(tmpDir, prefix)
 	if err != nil {
 		return "", err
@@ -429,10 +439,11 @@ func appendString(b []byte, s string) []byte {
 	return append(b, s...)
 }
 
-func encodeHeader(gen, maxID int64, infos []setInfo) []byte {
+func encodeHeader(st colStamp, infos []setInfo) []byte {
 	b := append([]byte(nil), colsMagic...)
-	b = binary.LittleEndian.AppendUint64(b, uint64(gen))
-	b = binary.LittleEndian.AppendUint64(b, uint64(maxID))
+	b = binary.LittleEndian.AppendUint64(b, uint64(st.gen))
+	b = binary.LittleEndian.AppendUint64(b, uint64(st.maxID))
+	b = appendString(b, st.sources)
 	b = binary.LittleEndian.AppendUint32(b, uint32(len(infos)))
 	for _, in := range infos {
 		b = appendString(b, string(in.kind))
@@ -491,28 +502,28 @@ func (h *hreader) str() string {
 }
 
 // readColumnsHeader opens path and checks its header against the
-// catalog state (gen, maxID).
-func readColumnsHeader(path string, gen, maxID int64) ([]setInfo, error) {
+// catalog state st.
+func readColumnsHeader(path string, st colStamp) ([]setInfo, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, errStale
 	}
 	defer f.Close()
-	st, err := f.Stat()
+	fi, err := f.Stat()
 	if err != nil {
 		return nil, errStale
 	}
-	return parseHeader(bufio.NewReader(f), st.Size(), gen, maxID)
+	return parseHeader(bufio.NewReader(f), fi.Size(), st)
 }
 
-func parseHeader(r *bufio.Reader, size, gen, maxID int64) ([]setInfo, error) {
+func parseHeader(r *bufio.Reader, size int64, st colStamp) ([]setInfo, error) {
 	magic := make([]byte, len(colsMagic))
 	if _, err := io.ReadFull(r, magic); err != nil || string(magic) != string(colsMagic) {
 		return nil, errStale
 	}
 	h := &hreader{r: r}
-	g, m, n := int64(h.u64()), int64(h.u64()), h.u32()
-	if h.err != nil || g != gen || m != maxID || n > 1<<12 {
+	g, m, src, n := int64(h.u64()), int64(h.u64()), h.str(), h.u32()
+	if h.err != nil || g != st.gen || m != st.maxID || src != st.sources || n > 1<<12 {
 		return nil, errStale
 	}
 	infos := make([]setInfo, n)
@@ -538,18 +549,18 @@ func parseHeader(r *bufio.Reader, size, gen, maxID int64) ([]setInfo, error) {
 }
 
 // readColumns reads the sets want accepts from the column file at path,
-// which must match (gen, maxID).
-func readColumns(path string, gen, maxID int64, want func(Kind, string) bool) (*Columns, error) {
+// which must match the catalog state st.
+func readColumns(path string, st colStamp, want func(Kind, string) bool) (*Columns, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, errStale
 	}
 	defer f.Close()
-	st, err := f.Stat()
+	fi, err := f.Stat()
 	if err != nil {
 		return nil, errStale
 	}
-	infos, err := parseHeader(bufio.NewReader(f), st.Size(), gen, maxID)
+	infos, err := parseHeader(bufio.NewReader(f), fi.Size(), st)
 	if err != nil {
 		return nil, err
 	}
@@ -583,7 +594,7 @@ func readColumns(path string, gen, maxID int64, want func(Kind, string) bool) (*
 			return nil, err
 		}
 	}
-	return &Columns{Gen: gen, Sets: sets}, nil
+	return &Columns{Gen: st.gen, Sets: sets}, nil
 }
 
 // readSet decodes one set's payload into columns.

@@ -118,7 +118,7 @@ func TestColumnsFollowChanges(t *testing.T) {
 	}
 	// the import itself refreshed the file (the reader did not need to)
 	v, _ := s.View(ctx)
-	if _, err := readColumnsHeader(s.colsPath(), v.Gen, v.max); err != nil {
+	if _, err := readColumnsHeader(s.colsPath(), v.st); err != nil {
 		t.Errorf("column file stale right after an import: %v", err)
 	}
 	v.Close()
@@ -138,7 +138,7 @@ func TestColumnsFollowChanges(t *testing.T) {
 		t.Fatal(err)
 	}
 	v, _ = s.View(ctx)
-	if _, err := readColumns(s.colsPath(), v.Gen, v.max, nil); err == nil {
+	if _, err := readColumns(s.colsPath(), v.st, nil); err == nil {
 		t.Errorf("a damaged column file was read without error")
 	}
 	v.Close()
@@ -179,7 +179,7 @@ func FuzzReadColumns(f *testing.F) {
 	if err != nil {
 		f.Fatal(err)
 	}
-	gen, max := v.Gen, v.max
+	stamp := v.st
 	v.Close()
 	good, err := os.ReadFile(s.colsPath())
 	if err != nil {
@@ -194,7 +194,7 @@ func FuzzReadColumns(f *testing.F) {
 		if err := os.WriteFile(path, data, 0o644); err != nil {
 			t.Fatal(err)
 		}
-		c, err := readColumns(path, gen, max, nil)
+		c, err := readColumns(path, stamp, nil)
 		if err == nil {
 			for _, cs := range c.Sets {
 				if len(cs.ID) != len(cs.MPN) || len(cs.ID) != len(cs.Ord) {
@@ -203,4 +203,30 @@ func FuzzReadColumns(f *testing.F) {
 			}
 		}
 	})
+}
+
+// TestColumnsOtherCatalogSameShape: a catalog built again with other
+// parts but the same generation and ids must not use the column file of
+// the one it replaced.
+func TestColumnsOtherCatalogSameShape(t *testing.T) {
+	dir := t.TempDir()
+	ps := sampleParts()
+	a := openAt(t, filepath.Join(dir, "a.db"))
+	importParts(t, a, "x", ps[0], ps[1])
+	saved, err := os.ReadFile(a.colsPath())
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := openAt(t, filepath.Join(dir, "b.db"))
+	importParts(t, b, "x", ps[2], ps[3])
+	if err := os.WriteFile(b.colsPath(), saved, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, cs := range colsOf(t, b).Sets {
+		for _, m := range cs.MPN {
+			if m != ps[2].MPN && m != ps[3].MPN {
+				t.Errorf("column file of another catalog used: %s", m)
+			}
+		}
+	}
 }
