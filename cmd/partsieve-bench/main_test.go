@@ -1,9 +1,15 @@
 package main
 
 import (
+	"context"
 	"os"
 	"os/exec"
 	"testing"
+
+	"partsieve/catalog"
+	"partsieve/query/spec"
+	"partsieve/query/topology"
+	"partsieve/seeddata"
 )
 
 func TestQuantiles(t *testing.T) {
@@ -17,6 +23,7 @@ func TestQuantiles(t *testing.T) {
 // figures each must report.
 func TestPhasesSmall(t *testing.T) {
 	dir := t.TempDir()
+	var picked results
 	want := map[string][]string{
 		"gen":    {"gen_s"},
 		"import": {"import_usable_s", "import_ready_s"},
@@ -53,6 +60,36 @@ func TestPhasesSmall(t *testing.T) {
 			if r["xlsx_added"] != 100 {
 				t.Errorf("xlsx added %v, want 100", r["xlsx_added"])
 			}
+		case "pick":
+			if r["pick_parts"] != 300 || r["pick_x_parts"] != 100 {
+				t.Errorf("pick on %v and %v parts, want 300 and 100", r["pick_parts"], r["pick_x_parts"])
+			}
+			picked = r
+		}
+	}
+	// the plain scan counts what SQL counts for the same queries
+	ctx := context.Background()
+	st, err := catalog.Open(ctx, catPath(dir))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	for _, name := range seeddata.SpecNames() {
+		data, path, _ := seeddata.Spec(name)
+		s, err := spec.Parse(path, data)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want := 0
+		for _, q := range topology.PrefilterQueries(s, topology.Options{}) {
+			ps, err := st.Find(ctx, q)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want += len(ps)
+		}
+		if got := picked["scan_"+name+"_n"]; got != float64(want) || want == 0 {
+			t.Errorf("%s: plain scan passes %v parts, SQL %d", name, got, want)
 		}
 	}
 	if _, err := os.Stat(csvPath(dir)); err != nil {

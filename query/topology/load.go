@@ -535,3 +535,20 @@ func pickColumns(ctx context.Context, v viewer, s *spec.Spec, opt Options) (*Res
 	mergePre(r, &loaded{pre: pre})
 	return r, nil
 }
+
+// PrefilterQueries returns the catalog queries Pick starts from for spec
+// s (kind and hard-limit conditions per role): for comparisons such as
+// the scale benchmark's plain scan.
+func PrefilterQueries(s *spec.Spec, opt Options) []catalog.Query {
+	opt = opt.withDefaults()
+	var out []catalog.Query
+	for _, pf := range prefilters(s) {
+		for _, t := range pf.topos {
+			if opt.wants(t) {
+				out = append(out, catalog.Query{Kind: pf.kind, Conds: append([]catalog.Cond(nil), pf.conds...)})
+				break
+			}
+		}
+	}
+	return out
+}
