@@ -14,18 +14,21 @@ import (
 	"time"
 )
 
-// withMigrationV2 makes this build know schema version 2, made by m, for
-// the rest of the test.
-func withMigrationV2(t *testing.T, m migration) {
+// cur is the schema version of this build, before a test adds one.
+var cur = len(migrations)
+
+// withMigrationNext makes this build know schema version cur+1, made by
+// m, for the rest of the test.
+func withMigrationNext(t *testing.T, m migration) {
 	saved := migrations
 	t.Cleanup(func() { migrations, schemaVersion = saved, len(saved) })
-	migrations = append(append([]migration(nil), saved[:1]...), m)
+	migrations = append(append([]migration(nil), saved[:cur]...), m)
 	schemaVersion = len(migrations)
 }
 
-// v1Catalog makes a version 1 catalog holding the sample parts and returns
-// its path and dump.
-func v1Catalog(t *testing.T) (string, string) {
+// curCatalog makes a catalog of this build's schema holding the sample
+// parts and returns its path and dump.
+func curCatalog(t *testing.T) (string, string) {
 	t.Helper()
 	path := filepath.Join(t.TempDir(), "c.db")
 	s := openAt(t, path)
@@ -61,10 +64,10 @@ func userVersion(t *testing.T, path string) int {
 // it was; a failing migration leaves the catalog exactly as it was (every
 // table) and keeps the backup, also exactly as it was.
 func TestMigrationBackupContents(t *testing.T) {
-	path, before := v1Catalog(t)
-	backup := path + ".bak-v1"
+	path, before := curCatalog(t)
+	backup := fmt.Sprintf("%s.bak-v%d", path, cur)
 	var during string
-	withMigrationV2(t, func(ctx context.Context, tx *sql.Tx) error {
+	withMigrationNext(t, func(ctx context.Context, tx *sql.Tx) error {
 		if _, err := os.Stat(backup); err != nil {
 			return fmt.Errorf("no backup during the migration: %w", err)
 		}
@@ -88,10 +91,10 @@ func TestMigrationBackupContents(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), "the catalog is unchanged; a copy is in "+backup) {
 		t.Fatalf("failing migration: %v", err)
 	}
-	if want := fmt.Sprintf("%d parts, version 1", len(sampleParts())); during != want {
+	if want := fmt.Sprintf("%d parts, version %d", len(sampleParts()), cur); during != want {
 		t.Errorf("backup during the migration: %q, want %q", during, want)
 	}
-	if v := userVersion(t, path); v != 1 {
+	if v := userVersion(t, path); v != cur {
 		t.Errorf("user_version after the failed migration = %d", v)
 	}
 	if _, err := os.Stat(backup); err != nil {
@@ -100,7 +103,7 @@ func TestMigrationBackupContents(t *testing.T) {
 
 	// back to this build's schema: the catalog and its backup are the
 	// catalog as it was
-	migrations, schemaVersion = migrations[:1], 1
+	migrations, schemaVersion = migrations[:cur], cur
 	if got := dumpAt(t, path); got != before {
 		t.Errorf("catalog changed by the failed migration:\n%s\nwant\n%s", got, before)
 	}
@@ -111,19 +114,19 @@ func TestMigrationBackupContents(t *testing.T) {
 
 // When the backup cannot be written, the migration does not start.
 func TestMigrationWithoutBackupRefused(t *testing.T) {
-	path, before := v1Catalog(t)
+	path, before := curCatalog(t)
 	ran := false
-	withMigrationV2(t, func(ctx context.Context, tx *sql.Tx) error {
+	withMigrationNext(t, func(ctx context.Context, tx *sql.Tx) error {
 		ran = true
 		return nil
 	})
-	// directories where the backup would go: PATH.bak-v1 and, since that
-	// exists, PATH.bak-v1-UNIXTIME
+	// directories where the backup would go: PATH.bak-vN and, since that
+	// exists, PATH.bak-vN-UNIXTIME
 	now := time.Now().Unix()
-	for _, name := range append([]string{path + ".bak-v1"}, func() []string {
+	for _, name := range append([]string{fmt.Sprintf("%s.bak-v%d", path, cur)}, func() []string {
 		var out []string
 		for sec := now - 1; sec <= now+30; sec++ {
-			out = append(out, fmt.Sprintf("%s.bak-v1-%d", path, sec))
+			out = append(out, fmt.Sprintf("%s.bak-v%d-%d", path, cur, sec))
 		}
 		return out
 	}()...) {
@@ -138,24 +141,24 @@ func TestMigrationWithoutBackupRefused(t *testing.T) {
 	if ran {
 		t.Error("the migration ran without a backup")
 	}
-	if v := userVersion(t, path); v != 1 {
+	if v := userVersion(t, path); v != cur {
 		t.Errorf("user_version = %d", v)
 	}
-	migrations, schemaVersion = migrations[:1], 1
+	migrations, schemaVersion = migrations[:cur], cur
 	if got := dumpAt(t, path); got != before {
 		t.Errorf("catalog changed:\n%s\nwant\n%s", got, before)
 	}
 }
 
 // TestHelperMigrating is not a test: TestMigrationKilled runs it in a
-// child process, where it opens a catalog with a migration to version 2
-// that never ends.
+// child process, where it opens a catalog with a migration to version
+// cur+1 that never ends.
 func TestHelperMigrating(t *testing.T) {
 	path := os.Getenv("PARTSIEVE_HELPER_MIGRATE")
 	if path == "" {
 		t.Skip("helper process only")
 	}
-	withMigrationV2(t, func(ctx context.Context, tx *sql.Tx) error {
+	withMigrationNext(t, func(ctx context.Context, tx *sql.Tx) error {
 		if _, err := tx.ExecContext(ctx, `ALTER TABLE parts ADD COLUMN trial REAL`); err != nil {
 			return err
 		}
@@ -178,7 +181,7 @@ func TestMigrationKilled(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts a process")
 	}
-	path, before := v1Catalog(t)
+	path, before := curCatalog(t)
 	cmd := exec.Command(os.Args[0], "-test.run=^TestHelperMigrating$", "-test.count=1")
 	cmd.Env = append(os.Environ(), "PARTSIEVE_HELPER_MIGRATE="+path)
 	stdout, err := cmd.StdoutPipe()
@@ -198,11 +201,11 @@ func TestMigrationKilled(t *testing.T) {
 	}
 	cmd.Wait()
 
-	backup := path + ".bak-v1"
+	backup := fmt.Sprintf("%s.bak-v%d", path, cur)
 	if _, err := os.Stat(backup); err != nil {
 		t.Fatalf("no backup after the killed migration: %v", err)
 	}
-	if v := userVersion(t, path); v != 1 {
+	if v := userVersion(t, path); v != cur {
 		t.Errorf("user_version after the killed migration = %d", v)
 	}
 	if got := dumpAt(t, path); got != before {
@@ -212,16 +215,16 @@ func TestMigrationKilled(t *testing.T) {
 		t.Errorf("backup of the killed migration:\n%s\nwant\n%s", got, before)
 	}
 
-	withMigrationV2(t, func(ctx context.Context, tx *sql.Tx) error {
+	withMigrationNext(t, func(ctx context.Context, tx *sql.Tx) error {
 		_, err := tx.ExecContext(ctx, `ALTER TABLE parts ADD COLUMN trial REAL`)
 		return err
 	})
 	s := openAt(t, path)
 	s.Close()
-	if v := userVersion(t, path); v != 2 {
+	if v := userVersion(t, path); v != cur+1 {
 		t.Errorf("user_version after the second migration = %d", v)
 	}
-	left, _ := filepath.Glob(path + ".bak-v1*")
+	left, _ := filepath.Glob(fmt.Sprintf("%s.bak-v%d*", path, cur))
 	if len(left) != 1 || left[0] != backup {
 		t.Errorf("backups after the second migration: %v, want only the killed attempt's %s", left, backup)
 	}

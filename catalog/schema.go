@@ -18,6 +18,10 @@ import (
 //	        breaks, source_id) UNIQUE(part_id, supplier_key, sku)
 //	part_sources(part_id, source_id)  which imports brought a part
 //
+// Indexes besides the keys: the partial indexes of paramIndexes, one per
+// kind and rating; find_order(mfr_key, mpn_key, kind) for the default
+// order of find (schema version 2).
+//
 // Field columns are named after the field (quoted, since "in", "desc" and
 // "package" are SQL keywords), except where the name collides with a
 // fixed column: the MOSFET drain current field "id" is column "f_id".
@@ -96,6 +100,7 @@ type migration func(ctx context.Context, tx *sql.Tx) error
 // produces schema version i+1. Append only.
 var migrations = []migration{
 	migrateV1,
+	migrateV2,
 }
 
 // schemaVersion is the schema this build writes.
@@ -163,6 +168,17 @@ func migrateV1(ctx context.Context, tx *sql.Tx) error {
 		}
 	}
 	return nil
+}
+
+// migrateV2 adds the order index: parts in the default order of find
+// (manufacturer key, part number key), with the kind. A query in that
+// order with a Limit walks it and stops after Limit matches instead of
+// sorting every match (at 1,000,000 parts, diodes with V_RRM ≥ 40 V took
+// 1.3 s that way, 10 ms by the walk); the kind column lets a walk of one
+// kind skip the others without reading their rows. About 45 bytes a part.
+func migrateV2(ctx context.Context, tx *sql.Tx) error {
+	_, err := tx.ExecContext(ctx, `CREATE INDEX IF NOT EXISTS `+orderIndex+` ON parts(mfr_key, mpn_key, "kind")`)
+	return err
 }
 
 // missingColumns lists the fields of the dictionary that have no column in

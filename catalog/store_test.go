@@ -4,6 +4,7 @@ import (
 	"context"
 	"database/sql"
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -77,7 +78,7 @@ func TestOpenRefusesNewerSchema(t *testing.T) {
 	s.Close()
 	rawExec(t, path, `PRAGMA user_version = 99`)
 	_, err := Open(context.Background(), path)
-	want := "catalog " + path + " was written by a newer partsieve (schema 99; this one knows 1)"
+	want := fmt.Sprintf("catalog %s was written by a newer partsieve (schema 99; this one knows %d)", path, schemaVersion)
 	if err == nil || err.Error() != want {
 		t.Fatalf("err = %v\nwant %s", err, want)
 	}
@@ -126,7 +127,8 @@ func TestOpenReadOnly(t *testing.T) {
 	}
 }
 
-// TestMigrationBackup runs a made-up version 2 over a version 1 catalog:
+// TestMigrationBackup runs a made-up next version over a catalog of this
+// build's version:
 // a failing one leaves the catalog as it was plus its backup, a working
 // one upgrades and removes the backup.
 func TestMigrationBackup(t *testing.T) {
@@ -136,6 +138,8 @@ func TestMigrationBackup(t *testing.T) {
 	s.Close()
 	saved := migrations
 	defer func() { migrations, schemaVersion = saved, len(saved) }()
+	cur := len(saved)
+	backup := fmt.Sprintf("%s.bak-v%d", path, cur)
 
 	migrations = append(append([]migration(nil), saved...), func(ctx context.Context, tx *sql.Tx) error {
 		if _, err := tx.ExecContext(ctx, `CREATE TABLE notes(x)`); err != nil {
@@ -145,11 +149,11 @@ func TestMigrationBackup(t *testing.T) {
 	})
 	schemaVersion = len(migrations)
 	_, err := Open(context.Background(), path)
-	if err == nil || !strings.Contains(err.Error(), "schema upgrade from version 1 failed: migration to version 2: boom") ||
-		!strings.Contains(err.Error(), path+".bak-v1") {
+	if err == nil || !strings.Contains(err.Error(), fmt.Sprintf("schema upgrade from version %d failed: migration to version %d: boom", cur, cur+1)) ||
+		!strings.Contains(err.Error(), backup) {
 		t.Fatalf("failing migration: %v", err)
 	}
-	if _, err := os.Stat(path + ".bak-v1"); err != nil {
+	if _, err := os.Stat(backup); err != nil {
 		t.Fatalf("backup missing after a failed migration: %v", err)
 	}
 	orig, err := sql.Open("sqlite", path)
@@ -160,10 +164,10 @@ func TestMigrationBackup(t *testing.T) {
 	orig.QueryRow(`PRAGMA user_version`).Scan(&ver)
 	orig.QueryRow(`SELECT count(*) FROM sqlite_schema WHERE name = 'notes'`).Scan(&notes)
 	orig.Close()
-	if ver != 1 || notes != 0 {
+	if ver != cur || notes != 0 {
 		t.Errorf("failed migration left version %d, notes table %d", ver, notes)
 	}
-	bak, err := sql.Open("sqlite", path+".bak-v1")
+	bak, err := sql.Open("sqlite", backup)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -172,19 +176,19 @@ func TestMigrationBackup(t *testing.T) {
 		t.Errorf("backup holds %d parts (%v)", n, err)
 	}
 	bak.Close()
-	os.Remove(path + ".bak-v1")
+	os.Remove(backup)
 
-	migrations[1] = func(ctx context.Context, tx *sql.Tx) error {
+	migrations[cur] = func(ctx context.Context, tx *sql.Tx) error {
 		_, err := tx.ExecContext(ctx, `CREATE TABLE notes(x)`)
 		return err
 	}
 	s2 := openAt(t, path)
 	ver = 0
 	s2.db.QueryRow(`PRAGMA user_version`).Scan(&ver)
-	if ver != 2 {
+	if ver != cur+1 {
 		t.Errorf("user_version after migration = %d", ver)
 	}
-	if _, err := os.Stat(path + ".bak-v1"); !os.IsNotExist(err) {
+	if _, err := os.Stat(backup); !os.IsNotExist(err) {
 		t.Errorf("backup not removed after success: %v", err)
 	}
 	if n := len(findAll(t, s2)); n != len(sampleParts()) {
