@@ -8,8 +8,6 @@ import (
 	"math"
 	"strconv"
 	"strings"
-
-	"github.com/blevesearch/bleve/v2/search/query"
 )
 
 // Result is the answer to a Query with what the caller should tell the
@@ -60,10 +58,7 @@ func (s *Store) Search(ctx context.Context, q Query) (*Result, error) {
 		return nil, err
 	}
 	res := &Result{}
-	var tq query.Query
-	if strings.TrimSpace(q.Text) != "" {
-		tq = textQuery(q.Text)
-	}
+	text := len(splitTerms(q.Text)) > 0
 	tx, err := s.db.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
 	if err != nil {
 		return nil, fmt.Errorf("catalog %s: %w", s.Path, err)
@@ -71,15 +66,15 @@ func (s *Store) Search(ctx context.Context, q Query) (*Result, error) {
 	defer tx.Rollback()
 	var ids []int64
 	relevance := false
-	if tq != nil {
+	if text {
 		if q.Sort == "" {
-			relevance, err = s.searchRelevance(ctx, tx, fq, tq, q.Limit, res)
+			relevance, err = s.searchRelevance(ctx, tx, fq, q.Text, q.Limit, res)
 			if err != nil {
 				return nil, err
 			}
 			ids = res.partIDs
 		} else {
-			hits, total, ok, err := s.textAll(ctx, tq)
+			hits, total, ok, err := s.textAll(ctx, q.Text)
 			if err != nil {
 				return nil, err
 			}
@@ -136,7 +131,7 @@ const (
 // that pass, exactly as one search of TextCap hits would give. It returns
 // false when the index cannot be used (the caller falls back to a
 // substring search).
-func (s *Store) searchRelevance(ctx context.Context, tx *sql.Tx, fq *findSQL, tq query.Query, limit int, res *Result) (bool, error) {
+func (s *Store) searchRelevance(ctx context.Context, tx *sql.Tx, fq *findSQL, text string, limit int, res *Result) (bool, error) {
 	filtered := len(fq.kinds) > 0 || len(fq.conds) > 0
 	want := TextCap
 	if limit > 0 {
@@ -150,7 +145,7 @@ func (s *Store) searchRelevance(ctx context.Context, tx *sql.Tx, fq *findSQL, tq
 	from := 0
 	for {
 		traceTextPage(from, want-from)
-		hits, total, ok, err := s.textSearch(ctx, tq, true, from, want-from)
+		hits, total, ok, err := s.textSearch(ctx, text, true, from, want-from)
 		if err != nil {
 			return false, err
 		}

@@ -284,3 +284,45 @@ func TestWalkOn(t *testing.T) {
 		}
 	}
 }
+
+// Hits of documents the catalog no longer has are skipped: with a Limit,
+// the next page of hits is read instead.
+func TestRelevanceSkipsGhostHits(t *testing.T) {
+	s := sampleStore(t)
+	ctx := context.Background()
+	if _, err := s.Search(ctx, Query{Text: "x"}); err != nil { // builds the index
+		t.Fatal(err)
+	}
+	s.mu.Lock()
+	s.closeIndexLocked()
+	ix, err := openIndex(s.indexDir(), true)
+	if err != nil {
+		s.mu.Unlock()
+		t.Fatal(err)
+	}
+	// ghosts that outrank the real Schottky diodes (short text, the word twice)
+	for _, id := range []string{"424242", "424243", "424244"} {
+		if err := ix.Index(id, map[string]any{"text": "schottky schottky"}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	ix.Close()
+	s.mu.Unlock()
+	var pages []int
+	traceTextPage = func(from, size int) { pages = append(pages, from) }
+	defer func() { traceTextPage = func(int, int) {} }()
+	r, err := s.Search(ctx, Query{Text: "schottky", Limit: 1})
+	if err != nil || r.Fallback {
+		t.Fatal(err, r.Fallback)
+	}
+	if len(r.Parts) != 1 || !strings.HasPrefix(r.Parts[0].MPN, "SBX") || r.TextHits != 5 {
+		t.Errorf("parts %v, hits %d", mpns(r.Parts), r.TextHits)
+	}
+	if len(pages) < 2 {
+		t.Errorf("pages from %v: the ghosts should have filled the first", pages)
+	}
+	r, err = s.Search(ctx, Query{Text: "schottky"})
+	if err != nil || !reflect.DeepEqual(sorted(mpns(r.Parts)), []string{"SBX1100", "SBX340-13"}) {
+		t.Errorf("without limit: %v %v", mpns(r.Parts), err)
+	}
+}

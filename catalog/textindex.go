@@ -9,10 +9,12 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"sync"
 	"time"
 	"unicode"
 
 	"github.com/blevesearch/bleve/v2"
+	"github.com/blevesearch/bleve/v2/analysis"
 	"github.com/blevesearch/bleve/v2/analysis/analyzer/custom"
 	"github.com/blevesearch/bleve/v2/analysis/analyzer/standard"
 	"github.com/blevesearch/bleve/v2/analysis/token/lowercase"
@@ -20,6 +22,7 @@ import (
 	"github.com/blevesearch/bleve/v2/index/scorch"
 	"github.com/blevesearch/bleve/v2/mapping"
 	"github.com/blevesearch/bleve/v2/search/query"
+	index "github.com/blevesearch/bleve_index_api"
 	bolterrors "go.etcd.io/bbolt/errors"
 )
 
@@ -27,18 +30,25 @@ import (
 // beside the catalog. It is a cache derived from SQLite: one document per
 // part, ID = the part id in decimal, nothing stored. Fields:
 //
-//	mfr, desc, package  standard analyzer (unicode words, lower case, English stop words)
-//	class               standard analyzer over "kind type" ("diode schottky")
-//	mpn, pkg            analyzer "partkey" (whole value as one token, lower
-//	                    case) over lower(NormKey(value)): "AB-12 34" is "ab1234"
+//	text      standard analyzer (unicode words, lower case, English stop
+//	          words) over "mfr desc package kind type"
+//	mpn, pkg  analyzer "partkey" (whole value as one token, lower case)
+//	          over lower(NormKey(value)): "AB-12 34" is "ab1234"
+//
+// The words of the manufacturer, description, package and class share one
+// field because a search costs about 70 ns per posting it scores: with one
+// field per source, a word such as "rectifier", in both the description
+// and the class of 289,000 of 1,000,000 parts, had twice the postings
+// (desc and class) and took 48 ms instead of 20 ms (layout 1).
 //
 // Numbers stay in SQLite: bleve numeric fields cost 3× index time and size
 // and are slower to filter than SQLite's indexes.
 //
 // The internal key "generation" records the catalog generation the index
-// reflects; an index whose generation differs from the catalog's, or that
-// cannot be opened, is rebuilt from SQLite into a temporary directory that
-// then replaces it, so a crash mid-rebuild never leaves a half index.
+// reflects and "layout" the field layout (indexLayout); an index whose
+// generation differs from the catalog's, of another layout, or that cannot
+// be opened, is rebuilt from SQLite into a temporary directory that then
+// replaces it, so a crash mid-rebuild never leaves a half index.
 
 // indexLockTimeout bounds the wait for an index held by another process
 // (bolt file lock); without it bleve.Open blocks forever. Tests shorten it.
@@ -49,8 +59,13 @@ var indexLockTimeout = 2 * time.Second
 const TextCap = 200000
 
 const (
-	keyAnalyzer  = "partkey"
-	genKey       = "generation"
+	keyAnalyzer = "partkey"
+	genKey      = "generation"
+	layoutKey   = "layout"
+	// indexLayout names the field layout this build writes and reads:
+	// "2" the text field; layout 1 (no key) had mfr, desc, package and
+	// class fields.
+	indexLayout  = "2"
 	indexBatch   = 2000
 	textFieldSQL = `parts.id, parts."kind", parts."type", parts."mfr", parts."mpn", parts."desc", parts."package"`
 )
@@ -79,9 +94,7 @@ func indexMapping() (mapping.IndexMapping, error) {
 		return fm
 	}
 	dm := bleve.NewDocumentStaticMapping()
-	for _, f := range []string{"mfr", "desc", "package", "class"} {
-		dm.AddFieldMappingsAt(f, field(standard.Name))
-	}
+	dm.AddFieldMappingsAt("text", field(standard.Name))
 	for _, f := range []string{"mpn", "pkg"} {
 		dm.AddFieldMappingsAt(f, field(keyAnalyzer))
 	}
@@ -98,13 +111,16 @@ func indexMapping() (mapping.IndexMapping, error) {
 func textKey(s string) string { return strings.ToLower(NormKey(s)) }
 
 func textDoc(kind, typ, mfr, mpn, desc, pkg sql.NullString) map[string]any {
+	var words []string
+	for _, v := range []sql.NullString{mfr, desc, pkg, kind, typ} {
+		if v.String != "" {
+			words = append(words, v.String)
+		}
+	}
 	return map[string]any{
-		"mfr":     mfr.String,
-		"desc":    desc.String,
-		"package": pkg.String,
-		"class":   strings.TrimSpace(kind.String + " " + typ.String),
-		"mpn":     textKey(mpn.String),
-		"pkg":     textKey(pkg.String),
+		"text": strings.Join(words, " "),
+		"mpn":  textKey(mpn.String),
+		"pkg":  textKey(pkg.String),
 	}
 }
 
@@ -128,7 +144,13 @@ func openIndex(dir string, rw bool) (bleve.Index, error) {
 	return ix, nil
 }
 
+// indexGeneration returns the catalog generation the index reflects; ok
+// is false when it records none or is of another layout than this build's
+// (either way it is stale).
 func indexGeneration(ix bleve.Index) (int64, bool) {
+	if l, err := ix.GetInternal([]byte(layoutKey)); err != nil || string(l) != indexLayout {
+		return 0, false
+	}
 	b, err := ix.GetInternal([]byte(genKey))
 	if err != nil || b == nil {
 		return 0, false
@@ -312,6 +334,7 @@ func (s *Store) fillIndex(ctx context.Context, ix bleve.Index) (int, error) {
 		return 0, err
 	}
 	b.SetInternal([]byte(genKey), []byte(strconv.FormatInt(gen, 10)))
+	b.SetInternal([]byte(layoutKey), []byte(indexLayout))
 	return n, ix.Batch(b)
 }
 
@@ -432,18 +455,28 @@ func splitTerms(text string) []string {
 // textQuery builds the bleve query for user text. Every term must match
 // (conjunction); a term matches when any of these does:
 //
-//   - a match query on mfr, desc, package or class (analysed with the
-//     standard analyser; fuzziness 1, one edit, for terms of 4 or 5
-//     characters, fuzziness 2 for 6 or more, so "shotky" finds
-//     "Schottky"; only for terms made of letters alone, since a fuzzy
-//     part number or package code matches the wrong parts; all tokens of
-//     the term required),
-//   - the exact part number or package key (lower(NormKey(term))),
-//   - a prefix of the part number or package key, for keys of 3 or more
-//     characters (shorter prefixes expand to too many terms).
+//   - the text field (manufacturer, description, package, kind and type)
+//     holds every word of the term as the standard analyser splits it;
+//     a word may differ by one edit when the term has 4 or 5 characters,
+//     by two when it has 6 or more, so "shotky" finds "Schottky"; only
+//     for terms made of letters alone, since a fuzzy part number or
+//     package code matches the wrong parts;
+//   - the part number or package key is the term's key
+//     (lower(NormKey(term))), boost 2;
+//   - the part number or package key starts with the term's key, for
+//     keys of 3 or more characters (shorter prefixes expand to too many
+//     terms).
 //
 // It returns nil when the text holds no term.
-func textQuery(text string) query.Query {
+func textQuery(text string) query.Query { return textQueryFor(text, nil) }
+
+// textQueryFor is textQuery for the index ix: it leaves out the part
+// number and package clauses that match nothing in ix (a dictionary
+// look-up each), and builds a clause of one query without the
+// disjunction or conjunction around it. Each such layer handles every
+// hit below it, so for a word in 289,000 of 1,000,000 parts this is 27 ms
+// instead of 49 ms. With ix nil nothing is left out.
+func textQueryFor(text string, ix bleve.Index) query.Query {
 	var conj []query.Query
 	for _, term := range splitTerms(text) {
 		var dis []query.Query
@@ -455,41 +488,101 @@ func textQuery(text string) query.Query {
 		case n >= 4:
 			fuzziness = 1
 		}
-		for _, f := range []string{"mfr", "desc", "package", "class"} {
-			mq := bleve.NewMatchQuery(term)
-			mq.SetField(f)
-			mq.SetOperator(query.MatchQueryOperatorAnd)
+		var words []query.Query
+		for _, tok := range wordAnalyzer().Analyze([]byte(term)) {
+			w := string(tok.Term)
 			if fuzziness > 0 {
-				mq.SetFuzziness(fuzziness)
+				fq := bleve.NewFuzzyQuery(w)
+				fq.SetField("text")
+				fq.SetFuzziness(fuzziness)
+				words = append(words, fq)
+			} else {
+				tq := bleve.NewTermQuery(w)
+				tq.SetField("text")
+				words = append(words, tq)
 			}
-			dis = append(dis, mq)
+		}
+		if len(words) > 0 {
+			dis = append(dis, oneOrAll(words))
 		}
 		if key := textKey(term); key != "" {
 			for _, f := range []string{"mpn", "pkg"} {
-				tq := bleve.NewTermQuery(key)
-				tq.SetField(f)
-				tq.SetBoost(2)
-				dis = append(dis, tq)
-				if len([]rune(key)) >= 3 {
+				prefix := len([]rune(key)) >= 3
+				if prefix && !indexHas(ix, f, key, true) {
+					continue // no key starts with it, so none is it
+				}
+				if indexHas(ix, f, key, false) {
+					tq := bleve.NewTermQuery(key)
+					tq.SetField(f)
+					tq.SetBoost(2)
+					dis = append(dis, tq)
+				}
+				if prefix {
 					pq := bleve.NewPrefixQuery(key)
 					pq.SetField(f)
 					dis = append(dis, pq)
 				}
 			}
 		}
-		conj = append(conj, bleve.NewDisjunctionQuery(dis...))
+		switch len(dis) {
+		case 0:
+			conj = append(conj, bleve.NewMatchNoneQuery())
+		case 1:
+			conj = append(conj, dis[0])
+		default:
+			conj = append(conj, bleve.NewDisjunctionQuery(dis...))
+		}
 	}
 	if len(conj) == 0 {
 		return nil
 	}
-	if len(conj) == 1 {
-		return conj[0]
+	return oneOrAll(conj)
+}
+
+// oneOrAll is qs[0] alone or the conjunction of qs.
+func oneOrAll(qs []query.Query) query.Query {
+	if len(qs) == 1 {
+		return qs[0]
 	}
-	return bleve.NewConjunctionQuery(conj...)
+	return bleve.NewConjunctionQuery(qs...)
+}
+
+var (
+	wordAnalyzerOnce sync.Once
+	wordAnalyzerVal  analysis.Analyzer
+)
+
+// wordAnalyzer is the analyser of the text field (standard).
+func wordAnalyzer() analysis.Analyzer {
+	wordAnalyzerOnce.Do(func() {
+		wordAnalyzerVal = bleve.NewIndexMapping().AnalyzerNamed(standard.Name)
+	})
+	return wordAnalyzerVal
+}
+
+// indexHas reports whether field of ix holds the term key (or, with
+// prefix, a term starting with key); true when ix is nil or cannot tell.
+func indexHas(ix bleve.Index, field, key string, prefix bool) bool {
+	if ix == nil {
+		return true
+	}
+	var d index.FieldDict
+	var err error
+	if prefix {
+		d, err = ix.FieldDictPrefix(field, []byte(key))
+	} else {
+		d, err = ix.FieldDictRange(field, []byte(key), []byte(key))
+	}
+	if err != nil {
+		return true
+	}
+	defer d.Close()
+	e, err := d.Next()
+	return err != nil || e != nil && (prefix || e.Term == key)
 }
 
 // textSearch returns the ids of the hits ranked [from, from+size) of the
-// text query q, best first when scored, and the total number of hits
+// query of text (textQueryFor), best first when scored, and the total number of hits
 // (exact when scored; see textAll otherwise). ok is false when the index
 // is held by another process and cannot be brought up to date: the caller
 // falls back to a substring search in SQLite.
@@ -498,7 +591,7 @@ func textQuery(text string) query.Query {
 // posting at 1,000,000 parts) plus keeping the best from+size of them, so
 // asking for a few more than needed is cheap and asking for TextCap is
 // not (about 10× a page of 50).
-func (s *Store) textSearch(ctx context.Context, q query.Query, scored bool, from, size int) (ids []int64, total uint64, ok bool, err error) {
+func (s *Store) textSearch(ctx context.Context, text string, scored bool, from, size int) (ids []int64, total uint64, ok bool, err error) {
 	gen, err := generation(ctx, s.db)
 	if err != nil {
 		return nil, 0, false, err
@@ -513,6 +606,10 @@ func (s *Store) textSearch(ctx context.Context, q query.Query, scored bool, from
 	if err != nil {
 		s.notify("text index unavailable (%v); using a plain substring search", err)
 		return nil, 0, false, nil
+	}
+	q := textQueryFor(text, ix)
+	if q == nil {
+		return nil, 0, true, nil
 	}
 	req := bleve.NewSearchRequestOptions(q, size, from, false)
 	if !scored {
@@ -533,17 +630,17 @@ func (s *Store) textSearch(ctx context.Context, q query.Query, scored bool, from
 	return ids, res.Total, true, nil
 }
 
-// textAll returns the ids of all hits of q, in no particular order, when
+// textAll returns the ids of all hits of text, in no particular order, when
 // there are at most TextCap, else the TextCap best; total is the number of
 // hits. An unscored search stops after the hits it was asked for (its
 // total then counts only those), so it asks for TextCap+1: more means
 // capped, and a scored search then picks the best and counts them all.
-func (s *Store) textAll(ctx context.Context, q query.Query) (ids []int64, total uint64, ok bool, err error) {
-	ids, total, ok, err = s.textSearch(ctx, q, false, 0, TextCap+1)
+func (s *Store) textAll(ctx context.Context, text string) (ids []int64, total uint64, ok bool, err error) {
+	ids, total, ok, err = s.textSearch(ctx, text, false, 0, TextCap+1)
 	if err != nil || !ok || len(ids) <= TextCap && total <= uint64(TextCap) {
 		return ids, total, ok, err
 	}
-	return s.textSearch(ctx, q, true, 0, TextCap)
+	return s.textSearch(ctx, text, true, 0, TextCap)
 }
 
 // allLetters reports whether s is made of letters only.
