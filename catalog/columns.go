@@ -7,7 +7,6 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
-	"hash"
 	"hash/crc32"
 	"io"
 	"math"
@@ -41,23 +40,31 @@ import (
 //
 // Layout (little-endian):
 //
-//	magic "PSCOLS04"
-//	gen int64, maxID int64, stamp (uvarint length + bytes), nsets uint32
-//	per set: kind, type (uvarint length + bytes), rows uint32,
-//	         nfields uint32, per field: name, present uint32;
-//	         offset uint64, length uint64, CRC-32C (Castagnoli) of the payload
+//	magic "PSCOLS05"
 //	payloads, one per set, rows in the catalog's canonical order
 //	(normalised part number, then maker: the order of the identity
-//	index):
-//	         id int64, ord uint32 (position in that order over the whole
-//	         catalog), mask uint64 (bit k: field k present),
-//	         the present values as float64 bits,
-//	         mfr, mpn, fuse_std, rerate (uvarint length + bytes)
+//	index), column by column:
+//	    id int64 × rows, ord uint32 × rows (position in that order over
+//	    the whole catalog),
+//	    per field of the directory: float64 × rows (NaN where absent),
+//	    mfr, fuse_std, rerate: a dictionary (uvarint count, then each
+//	    string as uvarint length + bytes) and uint32 × rows indexes,
+//	    mpn: uint32 × rows end offsets, then the bytes
+//	directory: gen int64, maxID int64, stamp (string), nsets uint32,
+//	    per set: kind, type (strings), rows uint32, nfields uint32, field
+//	    names (strings), offset uint64, length uint64, CRC-32C (Castagnoli)
+//	    of the payload
+//	trailer: directory offset uint64, directory length uint32,
+//	    "PSCOLEND"
 //
 // A set holds the parts of one kind and type; its fields are the Number
-// fields of the kind (Fields order), at most 64.
+// fields of the kind that at least one of its parts has. Writing streams
+// the rows into one spill file per set, then turns each set into columns
+// in turn, so memory stays at one set.
 
-var colsMagic = []byte("PSCOLS04")
+var colsMagic = []byte("PSCOLS05")
+
+var colsTrailer = []byte("PSCOLEND")
 
 // castagnoli is the CRC-32C table (hardware-assisted on common CPUs).
 var castagnoli = crc32.MakeTable(crc32.Castagnoli)
@@ -267,12 +274,13 @@ func cleanColumnLeftovers(path string) {
 	}
 }
 
-// spill is one set's payload while the file is written.
+// spill is one set's rows while the file is written (row by row: id,
+// ord, mask of the kind's fields present, those values, then mfr, mpn,
+// fuse_std and rerate as uvarint length + bytes).
 type spill struct {
 	info setInfo
 	f    *os.File
 	w    *bufio.Writer
-	crc  hash.Hash32
 }
 
 // writeColumns writes the column file of the catalog as seen by q (one
@@ -337,8 +345,8 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 			if err != nil {
 				return "", err
 			}
-			sp = &spill{info: setInfo{kind: k, typ: typ.String, fields: fields, present: make([]uint32, len(fields))}, f: f, crc: crc32.New(castagnoli)}
-			sp.w = bufio.NewWriterSize(io.MultiWriter(f, sp.crc), 1<<16)
+			sp = &spill{info: setInfo{kind: k, typ: typ.String, fields: fields, present: make([]uint32, len(fields))}, f: f}
+			sp.w = bufio.NewWriterSize(f, 1<<16)
 			sets[key] = sp
 			order = append(order, sp)
 		}
@@ -378,21 +386,6 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 		}
 		return strings.Compare(a.info.typ, b.info.typ)
 	})
-	infos := make([]setInfo, len(order))
-	for i, sp := range order {
-		if err := sp.w.Flush(); err != nil {
-			return "", err
-		}
-		sp.info.crc = sp.crc.Sum32()
-		infos[i] = sp.info
-	}
-	head := encodeHeader(st, infos)
-	off := uint64(len(head))
-	for i := range infos {
-		infos[i].offset = off
-		off += infos[i].length
-	}
-	head = encodeHeader(st, infos) // same length: offsets are fixed-size
 	out, err := os.CreateTemp(tmpDir, prefix)
 	if err != nil {
 		return "", err
@@ -405,16 +398,41 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 		}
 	}()
 	w := bufio.NewWriterSize(out, 1<<16)
-	if _, err := w.Write(head); err != nil {
+	if _, err := w.Write(colsMagic); err != nil {
 		return "", err
 	}
-	for _, sp := range order {
-		if _, err := sp.f.Seek(0, io.SeekStart); err != nil {
+	off := uint64(len(colsMagic))
+	infos := make([]setInfo, len(order))
+	for i, sp := range order {
+		// one set at a time: rows back into columns, then written
+		if err := sp.w.Flush(); err != nil {
 			return "", err
 		}
-		if _, err := io.Copy(w, sp.f); err != nil {
+		raw, err := os.ReadFile(sp.f.Name())
+		if err != nil {
 			return "", err
 		}
+		cs, err := decodeRows(raw, &sp.info)
+		if err != nil {
+			return "", fmt.Errorf("column spill: %w", err)
+		}
+		payload := encodeSet(cs)
+		in := setInfo{kind: cs.Kind, typ: cs.Type, rows: uint32(cs.Len()), fields: cs.Fields,
+			offset: off, length: uint64(len(payload)), crc: crc32.Checksum(payload, castagnoli)}
+		if _, err := w.Write(payload); err != nil {
+			return "", err
+		}
+		off += in.length
+		infos[i] = in
+		sp.f.Close()
+		os.Remove(sp.f.Name())
+	}
+	dir := encodeDir(st, infos)
+	tr := binary.LittleEndian.AppendUint64(nil, off)
+	tr = binary.LittleEndian.AppendUint32(tr, uint32(len(dir)))
+	tr = append(tr, colsTrailer...)
+	if _, err := w.Write(append(dir, tr...)); err != nil {
+		return "", err
 	}
 	if err := w.Flush(); err != nil {
 		return "", err
@@ -439,8 +457,8 @@ func appendString(b []byte, s string) []byte {
 	return append(b, s...)
 }
 
-func encodeHeader(st colStamp, infos []setInfo) []byte {
-	b := append([]byte(nil), colsMagic...)
+func encodeDir(st colStamp, infos []setInfo) []byte {
+	var b []byte
 	b = binary.LittleEndian.AppendUint64(b, uint64(st.gen))
 	b = binary.LittleEndian.AppendUint64(b, uint64(st.maxID))
 	b = appendString(b, st.sources)
@@ -450,13 +468,70 @@ func encodeHeader(st colStamp, infos []setInfo) []byte {
 		b = appendString(b, in.typ)
 		b = binary.LittleEndian.AppendUint32(b, in.rows)
 		b = binary.LittleEndian.AppendUint32(b, uint32(len(in.fields)))
-		for j, f := range in.fields {
+		for _, f := range in.fields {
 			b = appendString(b, f)
-			b = binary.LittleEndian.AppendUint32(b, in.present[j])
 		}
 		b = binary.LittleEndian.AppendUint64(b, in.offset)
 		b = binary.LittleEndian.AppendUint64(b, in.length)
 		b = binary.LittleEndian.AppendUint32(b, in.crc)
+	}
+	return b
+}
+
+// encodeSet writes a set column by column (the payload layout above).
+func encodeSet(cs *ColumnSet) []byte {
+	n := cs.Len()
+	size := n*12 + len(cs.Num)*n*8 + n*16
+	for _, m := range cs.MPN {
+		size += len(m)
+	}
+	b := make([]byte, 0, size)
+	for _, id := range cs.ID {
+		b = binary.LittleEndian.AppendUint64(b, uint64(id))
+	}
+	for _, o := range cs.Ord {
+		b = binary.LittleEndian.AppendUint32(b, o)
+	}
+	for _, col := range cs.Num {
+		for _, v := range col {
+			b = binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
+		}
+	}
+	empty := make([]string, n)
+	dict := func(vals []string) {
+		if vals == nil {
+			vals = empty
+		}
+		at := map[string]uint32{}
+		var words []string
+		idx := make([]uint32, n)
+		for i, v := range vals {
+			k, ok := at[v]
+			if !ok {
+				k = uint32(len(words))
+				at[v] = k
+				words = append(words, v)
+			}
+			idx[i] = k
+		}
+		b = binary.AppendUvarint(b, uint64(len(words)))
+		for _, w := range words {
+			b = appendString(b, w)
+		}
+		for _, k := range idx {
+			b = binary.LittleEndian.AppendUint32(b, k)
+		}
+	}
+	dict(cs.Mfr)
+	dict(cs.FuseStd)
+	dict(cs.Rerate)
+	end := uint32(0)
+	for _, m := range cs.MPN {
+		end += uint32(len(m))
+		b = binary.LittleEndian.AppendUint32(b, end)
+	}
+	for _, m := range cs.MPN {
+		b = append(b, m...)
 	}
 	return b
 }
@@ -501,7 +576,7 @@ func (h *hreader) str() string {
 	return string(b)
 }
 
-// readColumnsHeader opens path and checks its header against the
+// readColumnsHeader opens path and checks its directory against the
 // catalog state st.
 func readColumnsHeader(path string, st colStamp) ([]setInfo, error) {
 	f, err := os.Open(path)
@@ -509,19 +584,34 @@ func readColumnsHeader(path string, st colStamp) ([]setInfo, error) {
 		return nil, errStale
 	}
 	defer f.Close()
+	return readDir(f, st)
+}
+
+// readDir reads the directory of an open column file through its
+// trailer and checks it against st and the file's size.
+func readDir(f *os.File, st colStamp) ([]setInfo, error) {
 	fi, err := f.Stat()
 	if err != nil {
 		return nil, errStale
 	}
-	return parseHeader(bufio.NewReader(f), fi.Size(), st)
-}
-
-func parseHeader(r *bufio.Reader, size int64, st colStamp) ([]setInfo, error) {
-	magic := make([]byte, len(colsMagic))
-	if _, err := io.ReadFull(r, magic); err != nil || string(magic) != string(colsMagic) {
+	size := fi.Size()
+	tl := int64(12 + len(colsTrailer))
+	if size < int64(len(colsMagic))+tl {
 		return nil, errStale
 	}
-	h := &hreader{r: r}
+	head := make([]byte, len(colsMagic))
+	tr := make([]byte, tl)
+	if _, err := f.ReadAt(head, 0); err != nil || string(head) != string(colsMagic) {
+		return nil, errStale
+	}
+	if _, err := f.ReadAt(tr, size-tl); err != nil || string(tr[12:]) != string(colsTrailer) {
+		return nil, errStale
+	}
+	dOff, dLen := binary.LittleEndian.Uint64(tr), int64(binary.LittleEndian.Uint32(tr[8:]))
+	if dOff < uint64(len(colsMagic)) || dOff > uint64(size-tl) || int64(dOff)+dLen != size-tl {
+		return nil, errStale
+	}
+	h := &hreader{r: bufio.NewReader(io.NewSectionReader(f, int64(dOff), dLen))}
 	g, m, src, n := int64(h.u64()), int64(h.u64()), h.str(), h.u32()
 	if h.err != nil || g != st.gen || m != st.maxID || src != st.sources || n > 1<<12 {
 		return nil, errStale
@@ -538,10 +628,9 @@ func parseHeader(r *bufio.Reader, size int64, st colStamp) ([]setInfo, error) {
 		}
 		for range nf {
 			in.fields = append(in.fields, h.str())
-			in.present = append(in.present, h.u32())
 		}
 		in.offset, in.length, in.crc = h.u64(), h.u64(), h.u32()
-		if h.err != nil || in.offset > uint64(size) || in.length > uint64(size)-in.offset {
+		if h.err != nil || in.offset < uint64(len(colsMagic)) || in.offset > dOff || in.length > dOff-in.offset {
 			return nil, errStale
 		}
 	}
@@ -556,11 +645,7 @@ func readColumns(path string, st colStamp, want func(Kind, string) bool) (*Colum
 		return nil, errStale
 	}
 	defer f.Close()
-	fi, err := f.Stat()
-	if err != nil {
-		return nil, errStale
-	}
-	infos, err := parseHeader(bufio.NewReader(f), fi.Size(), st)
+	infos, err := readDir(f, st)
 	if err != nil {
 		return nil, err
 	}
@@ -597,10 +682,10 @@ func readColumns(path string, st colStamp, want func(Kind, string) bool) (*Colum
 	return &Columns{Gen: st.gen, Sets: sets}, nil
 }
 
-// readSet decodes one set's payload into columns.
+// readSet reads and decodes one set's payload (column by column).
 func readSet(f *os.File, in *setInfo) (*ColumnSet, error) {
 	n := int(in.rows)
-	if uint64(n)*20 > in.length || in.length > 1<<40 {
+	if uint64(n)*(12+8*uint64(len(in.fields))+16) > in.length || in.length > 1<<40 {
 		return nil, errStale
 	}
 	buf := make([]byte, in.length)
@@ -608,6 +693,98 @@ func readSet(f *os.File, in *setInfo) (*ColumnSet, error) {
 		return nil, errStale
 	}
 	if crc32.Checksum(buf, castagnoli) != in.crc {
+		return nil, errStale
+	}
+	cs := &ColumnSet{Kind: in.kind, Type: in.typ, ID: make([]int64, n), Ord: make([]uint32, n), Fields: in.fields}
+	pos := 0
+	for i := range cs.ID {
+		cs.ID[i] = int64(binary.LittleEndian.Uint64(buf[pos:]))
+		pos += 8
+	}
+	for i := range cs.Ord {
+		cs.Ord[i] = binary.LittleEndian.Uint32(buf[pos:])
+		pos += 4
+	}
+	cs.Num = make([][]float64, len(in.fields))
+	for k := range cs.Num {
+		col := make([]float64, n)
+		for i := range col {
+			col[i] = math.Float64frombits(binary.LittleEndian.Uint64(buf[pos:]))
+			pos += 8
+		}
+		cs.Num[k] = col
+	}
+	dict := func() ([]string, bool) {
+		cnt, k := binary.Uvarint(buf[pos:])
+		if k <= 0 || cnt > uint64(n)+1 {
+			return nil, false
+		}
+		pos += k
+		words := make([]string, cnt)
+		for w := range words {
+			l, k := binary.Uvarint(buf[pos:])
+			if k <= 0 || l > uint64(len(buf)-pos-k) {
+				return nil, false
+			}
+			words[w] = string(buf[pos+k : pos+k+int(l)])
+			pos += k + int(l)
+		}
+		if len(buf)-pos < 4*n {
+			return nil, false
+		}
+		out := make([]string, n)
+		for i := range out {
+			x := binary.LittleEndian.Uint32(buf[pos:])
+			pos += 4
+			if uint64(x) >= cnt {
+				return nil, false
+			}
+			out[i] = words[x]
+		}
+		return out, true
+	}
+	var ok bool
+	if cs.Mfr, ok = dict(); !ok {
+		return nil, errStale
+	}
+	fstd, ok := dict()
+	if !ok {
+		return nil, errStale
+	}
+	rer, ok := dict()
+	if !ok {
+		return nil, errStale
+	}
+	if in.kind == Fuse {
+		cs.FuseStd, cs.Rerate = fstd, rer
+	}
+	if len(buf)-pos < 4*n {
+		return nil, errStale
+	}
+	ends := buf[pos : pos+4*n]
+	pos += 4 * n
+	blob := string(buf[pos:])
+	cs.MPN = make([]string, n)
+	start := uint32(0)
+	for i := range cs.MPN {
+		end := binary.LittleEndian.Uint32(ends[4*i:])
+		if end < start || uint64(end) > uint64(len(blob)) {
+			return nil, errStale
+		}
+		cs.MPN[i] = blob[start:end]
+		start = end
+	}
+	if int(start) != len(blob) {
+		return nil, errStale
+	}
+	return cs, nil
+}
+
+// decodeRows turns a set's spill (rows, see spill) into columns; only
+// the fields some row has get a column.
+func decodeRows(buf []byte, in *setInfo) (*ColumnSet, error) {
+	n := int(in.rows)
+	if uint64(n)*20 > uint64(len(buf)) {
 		return nil, errStale
 	}
 	cs := &ColumnSet{Kind: in.kind, Type: in.typ, ID: make([]int64, n), Ord: make([]uint32, n), Mfr: make([]string, n), MPN: make([]string, n)}
