@@ -446,6 +446,12 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 		mode = st.Mode().Perm()
 	}
 	os.Chmod(out.Name(), mode)
+	// a reader whose transaction is older than the catalog (an import
+	// committed meanwhile) keeps its file to itself: the newer state's
+	// file, written by that import, must not be replaced by an older one
+	if g, err := generation(ctx, s.db); err != nil || g != st.gen {
+		return out.Name(), nil
+	}
 	if err := os.Rename(out.Name(), final); err != nil {
 		return out.Name(), nil
 	}

@@ -230,3 +230,40 @@ func TestColumnsOtherCatalogSameShape(t *testing.T) {
 		}
 	}
 }
+
+// TestColumnsOldReaderKeepsItsFile: a reader whose transaction predates
+// an import builds its columns for its own state and does not put that
+// older file in place of the import's.
+func TestColumnsOldReaderKeepsItsFile(t *testing.T) {
+	ctx := context.Background()
+	s := openTemp(t)
+	ps := sampleParts()
+	importParts(t, s, "a", ps[:3]...)
+	v, err := s.View(ctx) // the old state: 3 parts
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer v.Close()
+	importParts(t, s, "b", ps[3:]...)
+	os.Remove(s.colsPath()) // as if the import's refresh had not happened yet
+	c, err := v.Columns(ctx, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	for _, cs := range c.Sets {
+		n += cs.Len()
+	}
+	if n != 3 {
+		t.Errorf("old view sees %d parts, want 3", n)
+	}
+	if _, err := os.Stat(s.colsPath()); err == nil {
+		t.Errorf("the old view saved its file as the catalog's column file")
+	}
+	if left, _ := filepath.Glob(s.colsPath() + ".tmp-*"); len(left) > 0 {
+		t.Errorf("temporary files left: %v", left)
+	}
+	if got := colsOf(t, s); len(got.Sets) == 0 || got.Gen == v.Gen {
+		t.Errorf("a new view should see the new generation, got %d (old %d)", got.Gen, v.Gen)
+	}
+}
