@@ -7,7 +7,6 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
-	"hash/crc32"
 	"io"
 	"math"
 	"math/bits"
@@ -18,6 +17,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"unsafe"
 )
 
 // The column file: a typed, columnar copy of the catalog's number fields,
@@ -40,7 +40,7 @@ import (
 //
 // Layout (little-endian):
 //
-//	magic "PSCOLS05"
+//	magic "PSCOLS06"
 //	payloads, one per set, rows in the catalog's canonical order
 //	(normalised part number, then maker: the order of the identity
 //	index), column by column:
@@ -52,8 +52,8 @@ import (
 //	    mpn: uint32 × rows end offsets, then the bytes
 //	directory: gen int64, maxID int64, stamp (string), nsets uint32,
 //	    per set: kind, type (strings), rows uint32, nfields uint32, field
-//	    names (strings), offset uint64, length uint64, CRC-32C (Castagnoli)
-//	    of the payload
+//	    names (strings), offset uint64, length uint64, checksum uint64 of
+//	    the payload (see checksum)
 //	trailer: directory offset uint64, directory length uint32,
 //	    "PSCOLEND"
 //
@@ -62,15 +62,32 @@ import (
 // the rows into one spill file per set, then turns each set into columns
 // in turn, so memory stays at one set.
 
-var colsMagic = []byte("PSCOLS05")
+var colsMagic = []byte("PSCOLS06")
 
 var colsTrailer = []byte("PSCOLEND")
 
-// castagnoli is the CRC-32C table (hardware-assisted on common CPUs).
-var castagnoli = crc32.MakeTable(crc32.Castagnoli)
+// checksum is the payload check of a set: h ← h·P + w (mod 2⁶⁴) over the
+// payload's little-endian 64-bit words (the tail zero-padded), with the
+// length mixed in. P is odd, so P is invertible mod 2⁶⁴ and a change of any
+// single word always changes h; a truncated or shifted payload changes
+// it with overwhelming likelihood. It runs at memory speed, which a CRC
+// does not (CRC-32C measured 0.18 s for 136 MB here, this 0.02 s).
+func checksum(b []byte) uint64 {
+	const p = 0x9E3779B97F4A7C15 // odd (2⁶⁴/φ, common practice as a multiplier)
+	h := uint64(len(b))
+	for len(b) >= 8 {
+		h = h*p + binary.LittleEndian.Uint64(b)
+		b = b[8:]
+	}
+	var t [8]byte
+	copy(t[:], b)
+	return h*p + binary.LittleEndian.Uint64(t[:])
+}
 
 // ColumnSet holds the parts of one kind and type in canonical order:
-// normalised part number, then normalised maker (NormKey).
+// normalised part number, then normalised maker (NormKey). Its slices may
+// point into the mapped column file: they are valid until the Columns
+// they came from is closed.
 type ColumnSet struct {
 	Kind Kind
 	Type string
@@ -78,19 +95,49 @@ type ColumnSet struct {
 	// Ord is each part's position in the canonical order over all sets,
 	// for merging sets.
 	Ord []uint32
-	Mfr []string
-	MPN []string
-	// FuseStd and Rerate are the fuse text fields (nil for other kinds).
-	FuseStd []string
-	Rerate  []string
 	// Fields are the Number fields present in at least one row; Num[k][i]
 	// is field Fields[k] of row i, NaN when absent.
 	Fields []string
 	Num    [][]float64
+
+	mfr, fstd, rer dictCol
+	mpnEnds        []byte // uint32 end offsets into mpnBlob
+	mpnBlob        string
+}
+
+// dictCol is a text column: a dictionary and one uint32 index per row.
+type dictCol struct {
+	words []string
+	idx   []byte
+}
+
+func (d *dictCol) at(i int) string {
+	if d.words == nil {
+		return ""
+	}
+	return d.words[binary.LittleEndian.Uint32(d.idx[4*i:])]
 }
 
 // Len returns the number of parts of the set.
 func (cs *ColumnSet) Len() int { return len(cs.ID) }
+
+// Mfr returns the maker of row i.
+func (cs *ColumnSet) Mfr(i int) string { return cs.mfr.at(i) }
+
+// FuseStd returns the fuse rating convention of row i ("" for other kinds).
+func (cs *ColumnSet) FuseStd(i int) string { return cs.fstd.at(i) }
+
+// Rerate returns the fuse rerating points of row i ("" for other kinds).
+func (cs *ColumnSet) Rerate(i int) string { return cs.rer.at(i) }
+
+// MPN returns the part number of row i.
+func (cs *ColumnSet) MPN(i int) string {
+	start := uint32(0)
+	if i > 0 {
+		start = binary.LittleEndian.Uint32(cs.mpnEnds[4*(i-1):])
+	}
+	return cs.mpnBlob[start:binary.LittleEndian.Uint32(cs.mpnEnds[4*i:])]
+}
 
 // Col returns the column of a Number field, nil when no part of the set
 // has it.
@@ -104,10 +151,31 @@ func (cs *ColumnSet) Col(name string) []float64 {
 }
 
 // Columns is a columnar copy of some sets of the catalog at generation
-// Gen.
+// Gen. Close it when done (it may hold the column file mapped).
 type Columns struct {
-	Gen  int64
-	Sets []*ColumnSet
+	Gen   int64
+	Sets  []*ColumnSet
+	close func()
+}
+
+// Close releases the column file; the sets' slices are invalid after it.
+func (c *Columns) Close() {
+	if c.close != nil {
+		c.close()
+		c.close = nil
+	}
+	c.Sets = nil
+}
+
+// rowsData is a set on the writing side: rows decoded from a spill.
+type rowsData struct {
+	kind                Kind
+	typ                 string
+	id                  []int64
+	ord                 []uint32
+	fields              []string
+	num                 [][]float64
+	mfr, mpn, fstd, rer []string
 }
 
 // setInfo is one entry of the file's directory.
@@ -119,7 +187,7 @@ type setInfo struct {
 	present []uint32 // per field: rows that have it
 	offset  uint64
 	length  uint64
-	crc     uint32
+	sum     uint64
 }
 
 // kindNumFields returns the Number fields of kind k, in dictionary order.
@@ -417,8 +485,14 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 			return "", fmt.Errorf("column spill: %w", err)
 		}
 		payload := encodeSet(cs)
-		in := setInfo{kind: cs.Kind, typ: cs.Type, rows: uint32(cs.Len()), fields: cs.Fields,
-			offset: off, length: uint64(len(payload)), crc: crc32.Checksum(payload, castagnoli)}
+		if p := off % 8; p != 0 {
+			if _, err := w.Write(make([]byte, 8-p)); err != nil {
+				return "", err
+			}
+			off += 8 - p
+		}
+		in := setInfo{kind: cs.kind, typ: cs.typ, rows: uint32(len(cs.id)), fields: cs.fields,
+			offset: off, length: uint64(len(payload)), sum: checksum(payload)}
 		if _, err := w.Write(payload); err != nil {
 			return "", err
 		}
@@ -479,26 +553,34 @@ func encodeDir(st colStamp, infos []setInfo) []byte {
 		}
 		b = binary.LittleEndian.AppendUint64(b, in.offset)
 		b = binary.LittleEndian.AppendUint64(b, in.length)
-		b = binary.LittleEndian.AppendUint32(b, in.crc)
+		b = binary.LittleEndian.AppendUint64(b, in.sum)
 	}
 	return b
 }
 
-// encodeSet writes a set column by column (the payload layout above).
-func encodeSet(cs *ColumnSet) []byte {
-	n := cs.Len()
-	size := n*12 + len(cs.Num)*n*8 + n*16
-	for _, m := range cs.MPN {
+// encodeSet writes a set column by column (the payload layout above;
+// the caller starts it at an offset that is a multiple of 8, and every
+// number column stays 8-aligned, index columns 4-aligned).
+func encodeSet(cs *rowsData) []byte {
+	n := len(cs.id)
+	size := n*16 + len(cs.num)*n*8 + n*16 + 64
+	for _, m := range cs.mpn {
 		size += len(m)
 	}
 	b := make([]byte, 0, size)
-	for _, id := range cs.ID {
+	pad := func(k int) {
+		for len(b)%k != 0 {
+			b = append(b, 0)
+		}
+	}
+	for _, id := range cs.id {
 		b = binary.LittleEndian.AppendUint64(b, uint64(id))
 	}
-	for _, o := range cs.Ord {
+	for _, o := range cs.ord {
 		b = binary.LittleEndian.AppendUint32(b, o)
 	}
-	for _, col := range cs.Num {
+	pad(8)
+	for _, col := range cs.num {
 		for _, v := range col {
 			b = binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
 		}
@@ -524,19 +606,20 @@ func encodeSet(cs *ColumnSet) []byte {
 		for _, w := range words {
 			b = appendString(b, w)
 		}
+		pad(4)
 		for _, k := range idx {
 			b = binary.LittleEndian.AppendUint32(b, k)
 		}
 	}
-	dict(cs.Mfr)
-	dict(cs.FuseStd)
-	dict(cs.Rerate)
+	dict(cs.mfr)
+	dict(cs.fstd)
+	dict(cs.rer)
 	end := uint32(0)
-	for _, m := range cs.MPN {
+	for _, m := range cs.mpn {
 		end += uint32(len(m))
 		b = binary.LittleEndian.AppendUint32(b, end)
 	}
-	for _, m := range cs.MPN {
+	for _, m := range cs.mpn {
 		b = append(b, m...)
 	}
 	return b
@@ -635,7 +718,7 @@ func readDir(f *os.File, st colStamp) ([]setInfo, error) {
 		for range nf {
 			in.fields = append(in.fields, h.str())
 		}
-		in.offset, in.length, in.crc = h.u64(), h.u64(), h.u32()
+		in.offset, in.length, in.sum = h.u64(), h.u64(), h.u64()
 		if h.err != nil || in.offset < uint64(len(colsMagic)) || in.offset > dOff || in.length > dOff-in.offset {
 			return nil, errStale
 		}
@@ -644,7 +727,9 @@ func readDir(f *os.File, st colStamp) ([]setInfo, error) {
 }
 
 // readColumns reads the sets want accepts from the column file at path,
-// which must match the catalog state st.
+// which must match the catalog state st. The file is mapped into memory
+// where the system allows (the sets' number columns then point into the
+// page cache: no copy, no fresh memory) and read otherwise.
 func readColumns(path string, st colStamp, want func(Kind, string) bool) (*Columns, error) {
 	f, err := os.Open(path)
 	if err != nil {
@@ -655,13 +740,21 @@ func readColumns(path string, st colStamp, want func(Kind, string) bool) (*Colum
 	if err != nil {
 		return nil, err
 	}
-	// sets are decoded in parallel (ReadAt is safe for concurrent use)
+	fi, err := f.Stat()
+	if err != nil {
+		return nil, errStale
+	}
+	data, unmap, err := mapFile(f, fi.Size())
+	if err != nil {
+		return nil, errStale
+	}
 	var sel []*setInfo
 	for i := range infos {
 		if want == nil || want(infos[i].kind, infos[i].typ) {
 			sel = append(sel, &infos[i])
 		}
 	}
+	// sets are checked and decoded in parallel
 	sets := make([]*ColumnSet, len(sel))
 	errs := make([]error, len(sel))
 	next := make(chan int, len(sel))
@@ -675,128 +768,162 @@ func readColumns(path string, st colStamp, want func(Kind, string) bool) (*Colum
 		go func() {
 			defer wg.Done()
 			for i := range next {
-				sets[i], errs[i] = readSet(f, sel[i])
+				in := sel[i]
+				sets[i], errs[i] = readSet(data[in.offset:in.offset+in.length], in)
 			}
 		}()
 	}
 	wg.Wait()
 	for _, err := range errs {
 		if err != nil {
+			unmap()
 			return nil, err
 		}
 	}
-	return &Columns{Gen: st.gen, Sets: sets}, nil
+	return &Columns{Gen: st.gen, Sets: sets, close: unmap}, nil
 }
 
-// readSet reads and decodes one set's payload (column by column).
-func readSet(f *os.File, in *setInfo) (*ColumnSet, error) {
+// littleEndian is true on the usual hosts: number columns are then used
+// in place; elsewhere they are decoded into fresh slices.
+var littleEndian = binary.NativeEndian.Uint16([]byte{1, 0}) == 1
+
+// int64s returns b (8·n bytes) as n little-endian int64s.
+func int64s(b []byte) []int64 {
+	n := len(b) / 8
+	if littleEndian && n > 0 && uintptr(unsafe.Pointer(&b[0]))%8 == 0 {
+		return unsafe.Slice((*int64)(unsafe.Pointer(&b[0])), n)
+	}
+	out := make([]int64, n)
+	for i := range out {
+		out[i] = int64(binary.LittleEndian.Uint64(b[8*i:]))
+	}
+	return out
+}
+
+// uint32s returns b (4·n bytes) as n little-endian uint32s.
+func uint32s(b []byte) []uint32 {
+	n := len(b) / 4
+	if littleEndian && n > 0 && uintptr(unsafe.Pointer(&b[0]))%4 == 0 {
+		return unsafe.Slice((*uint32)(unsafe.Pointer(&b[0])), n)
+	}
+	out := make([]uint32, n)
+	for i := range out {
+		out[i] = binary.LittleEndian.Uint32(b[4*i:])
+	}
+	return out
+}
+
+// float64s returns b (8·n bytes) as n little-endian float64s.
+func float64s(b []byte) []float64 {
+	n := len(b) / 8
+	if littleEndian && n > 0 && uintptr(unsafe.Pointer(&b[0]))%8 == 0 {
+		return unsafe.Slice((*float64)(unsafe.Pointer(&b[0])), n)
+	}
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = math.Float64frombits(binary.LittleEndian.Uint64(b[8*i:]))
+	}
+	return out
+}
+
+// readSet checks and decodes one set's payload (buf, which starts at an
+// offset that is a multiple of 8 in the file) without copying its
+// numbers.
+func readSet(buf []byte, in *setInfo) (*ColumnSet, error) {
 	n := int(in.rows)
-	if uint64(n)*(12+8*uint64(len(in.fields))+16) > in.length || in.length > 1<<40 {
+	if uint64(n)*(12+8*uint64(len(in.fields))+16) > uint64(len(buf)) {
 		return nil, errStale
 	}
-	buf := make([]byte, in.length)
-	if _, err := f.ReadAt(buf, int64(in.offset)); err != nil {
+	if checksum(buf) != in.sum {
 		return nil, errStale
 	}
-	if crc32.Checksum(buf, castagnoli) != in.crc {
-		return nil, errStale
-	}
-	cs := &ColumnSet{Kind: in.kind, Type: in.typ, ID: make([]int64, n), Ord: make([]uint32, n), Fields: in.fields}
+	cs := &ColumnSet{Kind: in.kind, Type: in.typ, Fields: in.fields}
 	pos := 0
-	for i := range cs.ID {
-		cs.ID[i] = int64(binary.LittleEndian.Uint64(buf[pos:]))
-		pos += 8
+	take := func(k, align int) []byte {
+		for pos%align != 0 {
+			pos++
+		}
+		if k < 0 || pos > len(buf) || k > len(buf)-pos {
+			return nil
+		}
+		b := buf[pos : pos+k]
+		pos += k
+		return b
 	}
-	for i := range cs.Ord {
-		cs.Ord[i] = binary.LittleEndian.Uint32(buf[pos:])
-		pos += 4
+	ids, ords := take(8*n, 8), take(4*n, 4)
+	if ids == nil || ords == nil {
+		return nil, errStale
 	}
+	cs.ID, cs.Ord = int64s(ids), uint32s(ords)
 	cs.Num = make([][]float64, len(in.fields))
 	for k := range cs.Num {
-		col := make([]float64, n)
-		for i := range col {
-			col[i] = math.Float64frombits(binary.LittleEndian.Uint64(buf[pos:]))
-			pos += 8
-		}
-		cs.Num[k] = col
-	}
-	dict := func() ([]string, bool) {
-		cnt, k := binary.Uvarint(buf[pos:])
-		if k <= 0 || cnt > uint64(n)+1 {
-			return nil, false
-		}
-		pos += k
-		words := make([]string, cnt)
-		for w := range words {
-			l, k := binary.Uvarint(buf[pos:])
-			if k <= 0 || l > uint64(len(buf)-pos-k) {
-				return nil, false
-			}
-			words[w] = string(buf[pos+k : pos+k+int(l)])
-			pos += k + int(l)
-		}
-		if len(buf)-pos < 4*n {
-			return nil, false
-		}
-		out := make([]string, n)
-		for i := range out {
-			x := binary.LittleEndian.Uint32(buf[pos:])
-			pos += 4
-			if uint64(x) >= cnt {
-				return nil, false
-			}
-			out[i] = words[x]
-		}
-		return out, true
-	}
-	var ok bool
-	if cs.Mfr, ok = dict(); !ok {
-		return nil, errStale
-	}
-	fstd, ok := dict()
-	if !ok {
-		return nil, errStale
-	}
-	rer, ok := dict()
-	if !ok {
-		return nil, errStale
-	}
-	if in.kind == Fuse {
-		cs.FuseStd, cs.Rerate = fstd, rer
-	}
-	if len(buf)-pos < 4*n {
-		return nil, errStale
-	}
-	ends := buf[pos : pos+4*n]
-	pos += 4 * n
-	blob := string(buf[pos:])
-	cs.MPN = make([]string, n)
-	start := uint32(0)
-	for i := range cs.MPN {
-		end := binary.LittleEndian.Uint32(ends[4*i:])
-		if end < start || uint64(end) > uint64(len(blob)) {
+		b := take(8*n, 8)
+		if b == nil {
 			return nil, errStale
 		}
-		cs.MPN[i] = blob[start:end]
-		start = end
+		cs.Num[k] = float64s(b)
 	}
-	if int(start) != len(blob) {
+	dict := func(d *dictCol) bool {
+		cnt, k := binary.Uvarint(buf[min(pos, len(buf)):])
+		if k <= 0 || cnt == 0 || cnt > uint64(n)+1 {
+			return false
+		}
+		pos += k
+		d.words = make([]string, cnt)
+		for w := range d.words {
+			l, k := binary.Uvarint(buf[pos:])
+			if k <= 0 || l > uint64(len(buf)-pos-k) {
+				return false
+			}
+			d.words[w] = string(buf[pos+k : pos+k+int(l)])
+			pos += k + int(l)
+		}
+		if d.idx = take(4*n, 4); d.idx == nil {
+			return false
+		}
+		for i := 0; i < n; i++ {
+			if uint64(binary.LittleEndian.Uint32(d.idx[4*i:])) >= cnt {
+				return false
+			}
+		}
+		return true
+	}
+	if !dict(&cs.mfr) || !dict(&cs.fstd) || !dict(&cs.rer) {
 		return nil, errStale
+	}
+	if cs.mpnEnds = take(4*n, 1); cs.mpnEnds == nil {
+		return nil, errStale
+	}
+	cs.mpnBlob = string(buf[pos:]) // a copy: part numbers outlive the mapping
+	prev := uint32(0)
+	for i := 0; i < n; i++ {
+		end := binary.LittleEndian.Uint32(cs.mpnEnds[4*i:])
+		if end < prev || uint64(end) > uint64(len(cs.mpnBlob)) {
+			return nil, errStale
+		}
+		prev = end
+	}
+	if int(prev) != len(cs.mpnBlob) {
+		return nil, errStale
+	}
+	cs.mpnEnds = append([]byte(nil), cs.mpnEnds...) // small; survives the mapping too
+	if in.kind != Fuse {
+		cs.fstd, cs.rer = dictCol{}, dictCol{}
 	}
 	return cs, nil
 }
 
 // decodeRows turns a set's spill (rows, see spill) into columns; only
 // the fields some row has get a column.
-func decodeRows(buf []byte, in *setInfo) (*ColumnSet, error) {
+func decodeRows(buf []byte, in *setInfo) (*rowsData, error) {
 	n := int(in.rows)
 	if uint64(n)*20 > uint64(len(buf)) {
 		return nil, errStale
 	}
-	cs := &ColumnSet{Kind: in.kind, Type: in.typ, ID: make([]int64, n), Ord: make([]uint32, n), Mfr: make([]string, n), MPN: make([]string, n)}
+	cs := &rowsData{kind: in.kind, typ: in.typ, id: make([]int64, n), ord: make([]uint32, n), mfr: make([]string, n), mpn: make([]string, n)}
 	isFuse := in.kind == Fuse
 	if isFuse {
-		cs.FuseStd, cs.Rerate = make([]string, n), make([]string, n)
+		cs.fstd, cs.rer = make([]string, n), make([]string, n)
 	}
 	// columns only for fields some row has; slot[j] is the column of
 	// file field j, -1 when none
@@ -804,13 +931,13 @@ func decodeRows(buf []byte, in *setInfo) (*ColumnSet, error) {
 	for j, name := range in.fields {
 		slot[j] = -1
 		if in.present[j] > 0 {
-			slot[j] = len(cs.Fields)
-			cs.Fields = append(cs.Fields, name)
+			slot[j] = len(cs.fields)
+			cs.fields = append(cs.fields, name)
 			col := make([]float64, n)
 			for i := range col {
 				col[i] = math.NaN()
 			}
-			cs.Num = append(cs.Num, col)
+			cs.num = append(cs.num, col)
 		}
 	}
 	intern := map[string]string{}
@@ -841,8 +968,8 @@ func decodeRows(buf []byte, in *setInfo) (*ColumnSet, error) {
 		if len(buf)-pos < 20 {
 			return nil, errStale
 		}
-		cs.ID[i] = int64(binary.LittleEndian.Uint64(buf[pos:]))
-		cs.Ord[i] = binary.LittleEndian.Uint32(buf[pos+8:])
+		cs.id[i] = int64(binary.LittleEndian.Uint64(buf[pos:]))
+		cs.ord[i] = binary.LittleEndian.Uint32(buf[pos+8:])
 		mask := binary.LittleEndian.Uint64(buf[pos+12:])
 		pos += 20
 		if bits.Len64(mask) > len(in.fields) || len(buf)-pos < 8*bits.OnesCount64(mask) {
@@ -853,14 +980,14 @@ func decodeRows(buf []byte, in *setInfo) (*ColumnSet, error) {
 			if slot[j] < 0 {
 				return nil, errStale
 			}
-			cs.Num[slot[j]][i] = math.Float64frombits(binary.LittleEndian.Uint64(buf[pos:]))
+			cs.num[slot[j]][i] = math.Float64frombits(binary.LittleEndian.Uint64(buf[pos:]))
 			pos += 8
 		}
 		t, ok := text()
 		if !ok {
 			return nil, errStale
 		}
-		cs.Mfr[i] = internStr(t)
+		cs.mfr[i] = internStr(t)
 		if t, ok = text(); !ok {
 			return nil, errStale
 		}
@@ -870,13 +997,13 @@ func decodeRows(buf []byte, in *setInfo) (*ColumnSet, error) {
 			return nil, errStale
 		}
 		if isFuse {
-			cs.FuseStd[i] = internStr(t)
+			cs.fstd[i] = internStr(t)
 		}
 		if t, ok = text(); !ok {
 			return nil, errStale
 		}
 		if isFuse {
-			cs.Rerate[i] = internStr(t)
+			cs.rer[i] = internStr(t)
 		}
 	}
 	if pos != len(buf) {
@@ -885,8 +1012,20 @@ func decodeRows(buf []byte, in *setInfo) (*ColumnSet, error) {
 	all := string(mpnAll)
 	start := 0
 	for i, end := range mpnEnd {
-		cs.MPN[i] = all[start:end]
+		cs.mpn[i] = all[start:end]
 		start = end
 	}
 	return cs, nil
+}
+
+// readWhole reads the file into memory (mapFile's fallback).
+func readWhole(f *os.File, size int64) ([]byte, func(), error) {
+	if size <= 0 || size > 1<<40 {
+		return nil, nil, errStale
+	}
+	b := make([]byte, size)
+	if _, err := f.ReadAt(b, 0); err != nil {
+		return nil, nil, err
+	}
+	return b, func() {}, nil
 }

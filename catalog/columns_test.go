@@ -21,6 +21,7 @@ func colsOf(t testing.TB, s *Store) *Columns {
 	if err != nil {
 		t.Fatal(err)
 	}
+	t.Cleanup(c.Close)
 	return c
 }
 
@@ -45,9 +46,9 @@ func TestColumnsMatchCatalog(t *testing.T) {
 		for i := 0; i < cs.Len(); i++ {
 			n++
 			ords = append(ords, cs.Ord[i])
-			p, ok := byKey[cs.Mfr[i]+"|"+cs.MPN[i]]
+			p, ok := byKey[cs.Mfr(i)+"|"+cs.MPN(i)]
 			if !ok {
-				t.Fatalf("set %s/%s row %d: %s %s is not in the catalog", cs.Kind, cs.Type, i, cs.Mfr[i], cs.MPN[i])
+				t.Fatalf("set %s/%s row %d: %s %s is not in the catalog", cs.Kind, cs.Type, i, cs.Mfr(i), cs.MPN(i))
 			}
 			if p.Kind != cs.Kind || p.Type != cs.Type {
 				t.Errorf("%s: set %s/%s, part %s/%s", p.MPN, cs.Kind, cs.Type, p.Kind, p.Type)
@@ -63,13 +64,13 @@ func TestColumnsMatchCatalog(t *testing.T) {
 					t.Errorf("%s %s: column %v, catalog %v (present %v)", p.MPN, name, got, want, has)
 				}
 			}
-			if cs.Kind == Fuse && (cs.FuseStd[i] != p.FuseStd || cs.Rerate[i] != p.Rerate) {
-				t.Errorf("%s: fuse texts %q %q, catalog %q %q", p.MPN, cs.FuseStd[i], cs.Rerate[i], p.FuseStd, p.Rerate)
+			if cs.Kind == Fuse && (cs.FuseStd(i) != p.FuseStd || cs.Rerate(i) != p.Rerate) {
+				t.Errorf("%s: fuse texts %q %q, catalog %q %q", p.MPN, cs.FuseStd(i), cs.Rerate(i), p.FuseStd, p.Rerate)
 			}
 		}
 		for i := 1; i < cs.Len(); i++ {
-			if NormKey(cs.MPN[i-1]) > NormKey(cs.MPN[i]) {
-				t.Errorf("set %s/%s: %s before %s, not in part-number order", cs.Kind, cs.Type, cs.MPN[i-1], cs.MPN[i])
+			if NormKey(cs.MPN(i-1)) > NormKey(cs.MPN(i)) {
+				t.Errorf("set %s/%s: %s before %s, not in part-number order", cs.Kind, cs.Type, cs.MPN(i-1), cs.MPN(i))
 			}
 		}
 	}
@@ -187,7 +188,7 @@ func FuzzReadColumns(f *testing.F) {
 	}
 	f.Add(good)
 	f.Add(good[:len(good)/2])
-	f.Add([]byte("PSCOLS05"))
+	f.Add([]byte("PSCOLS06"))
 	dir := f.TempDir()
 	f.Fuzz(func(t *testing.T, data []byte) {
 		path := filepath.Join(dir, "cols")
@@ -197,10 +198,17 @@ func FuzzReadColumns(f *testing.F) {
 		c, err := readColumns(path, stamp, nil)
 		if err == nil {
 			for _, cs := range c.Sets {
-				if len(cs.ID) != len(cs.MPN) || len(cs.ID) != len(cs.Ord) {
+				if len(cs.ID) != len(cs.Ord) {
 					t.Fatalf("inconsistent set lengths")
 				}
+				for i := 0; i < cs.Len(); i++ {
+					_ = cs.MPN(i) + cs.Mfr(i) + cs.FuseStd(i) + cs.Rerate(i)
+					for _, col := range cs.Num {
+						_ = col[i]
+					}
+				}
 			}
+			c.Close()
 		}
 	})
 }
@@ -223,8 +231,8 @@ func TestColumnsOtherCatalogSameShape(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, cs := range colsOf(t, b).Sets {
-		for _, m := range cs.MPN {
-			if m != ps[2].MPN && m != ps[3].MPN {
+		for i := 0; i < cs.Len(); i++ {
+			if m := cs.MPN(i); m != ps[2].MPN && m != ps[3].MPN {
 				t.Errorf("column file of another catalog used: %s", m)
 			}
 		}

@@ -456,6 +456,7 @@ func phasePick(ctx context.Context, dir string) (results, error) {
 		return nil, err
 	}
 	res["scan_load_s"] = time.Since(t0).Seconds()
+	defer cols.Close()
 	for _, name := range names {
 		qs := topology.PrefilterQueries(specs[name], topology.Options{})
 		t0 := time.Now()
