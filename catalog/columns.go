@@ -40,7 +40,7 @@ import (
 //
 // Layout (little-endian):
 //
-//	magic "PSCOLS06"
+//	magic "PSCOLS07"
 //	payloads, one per set, rows in the catalog's canonical order
 //	(normalised part number, then maker: the order of the identity
 //	index), column by column:
@@ -62,7 +62,7 @@ import (
 // the rows into one spill file per set, then turns each set into columns
 // in turn, so memory stays at one set.
 
-var colsMagic = []byte("PSCOLS06")
+var colsMagic = []byte("PSCOLS07")
 
 var colsTrailer = []byte("PSCOLEND")
 

@@ -188,7 +188,7 @@ func FuzzReadColumns(f *testing.F) {
 	}
 	f.Add(good)
 	f.Add(good[:len(good)/2])
-	f.Add([]byte("PSCOLS06"))
+	f.Add([]byte("PSCOLS07"))
 	dir := f.TempDir()
 	f.Fuzz(func(t *testing.T, data []byte) {
 		path := filepath.Join(dir, "cols")
