@@ -307,62 +307,6 @@ func TestRemoveSource(t *testing.T) {
 	}
 }
 
-// A large import into a small catalog drops the parametric indexes and
-// rebuilds them at Commit; a rollback restores them.
-func TestBulkImportIndexes(t *testing.T) {
-	saved := bulkThreshold
-	bulkThreshold = 5
-	defer func() { bulkThreshold = saved }()
-	s := openTemp(t)
-	ctx := context.Background()
-	indexes := func() int {
-		var n int
-		s.db.QueryRow(`SELECT count(*) FROM sqlite_schema WHERE type = 'index' AND name LIKE 'parts\_%' ESCAPE '\'`).Scan(&n)
-		return n
-	}
-	if n := indexes(); n != len(paramIndexes) {
-		t.Fatalf("%d parametric indexes", n)
-	}
-	ps := genParts(40, 3)
-	for _, commit := range []bool{false, true} {
-		tx, err := s.BeginImport(ctx, Source{Label: "bulk"})
-		if err != nil {
-			t.Fatal(err)
-		}
-		for _, p := range ps {
-			if _, _, err := tx.Put(p); err != nil {
-				t.Fatal(err)
-			}
-		}
-		if !tx.dropped {
-			t.Fatal("indexes not dropped")
-		}
-		if commit {
-			err = tx.Commit(Source{})
-		} else {
-			err = tx.Rollback()
-		}
-		if err != nil {
-			t.Fatal(err)
-		}
-		if n := indexes(); n != len(paramIndexes) {
-			t.Errorf("commit=%v: %d parametric indexes afterwards", commit, n)
-		}
-	}
-	if got := len(findAll(t, s)); got != 40 {
-		t.Errorf("%d parts", got)
-	}
-	var offers, links int
-	s.db.QueryRow(`SELECT count(*) FROM offers`).Scan(&offers)
-	s.db.QueryRow(`SELECT count(*) FROM part_sources`).Scan(&links)
-	if offers != 40 || links != 40 {
-		t.Errorf("%d offers, %d provenance links", offers, links)
-	}
-	if probs, err := s.Check(ctx); err != nil || len(probs) != 0 {
-		t.Errorf("Check: %q %v", probs, err)
-	}
-}
-
 // A part new in this import, listed again in the same file: its offers
 // are still buffered when the second row arrives.
 func TestPutRepeatedNewPartInOneImport(t *testing.T) {
