@@ -3,6 +3,7 @@ package importers
 import (
 	"errors"
 	"fmt"
+	"slices"
 	"sort"
 	"strings"
 
@@ -22,6 +23,45 @@ type converter struct {
 	section   guess        // kind told by a section title row above
 	rowStd    string       // fuse standard of the row being converted
 	na        map[int]map[catalog.Kind]bool
+
+	// per-column facts and per-row scratch, kept across rows
+	cols    []colInfo
+	numHint int // most numbers a row gave so far: the size of the next Num map
+	fedBy   map[string]int
+	fedCols map[int]bool
+	present map[catalog.Kind][]string
+	texts   []kindText
+}
+
+// colInfo is what convert needs to know of a column on every row, worked
+// out once per sheet.
+type colInfo struct {
+	dim      units.Dim     // dimension of its cells (targetDim), None for text and offers
+	field    catalog.Field // catalog field of its target, when not a generic rating
+	isField  bool
+	kind     catalog.Kind // kind a filled cell hints (kindFields), "" for none
+	signedOK bool         // the field may be written negative (signedFields, temperatures)
+}
+
+// columns returns the per-column facts of the converter's layout.
+func (cv *converter) columns() []colInfo {
+	if cv.cols != nil {
+		return cv.cols
+	}
+	cv.cols = make([]colInfo, len(cv.lo.cols))
+	for i, c := range cv.lo.cols {
+		ci := &cv.cols[i]
+		if c.Field == "" {
+			continue
+		}
+		ci.dim = targetDim(c.Field)
+		ci.kind = kindFields[c.Field]
+		if _, generic := genericDim[c.Field]; !generic {
+			ci.field, ci.isField = catalog.FieldByName(c.Field)
+			ci.signedOK = signedFields[ci.field.Name] || ci.field.Dim == units.Temperature
+		}
+	}
+	return cv.cols
 }
 
 // constant is a mapping-file value applied to every row lacking the field.
@@ -116,8 +156,13 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 	if rej != nil {
 		return nil, rej
 	}
-	p := &catalog.Part{Kind: kind, Type: typ, Mfr: cleanSpaces(mfr), MPN: cleanSpaces(mpn), Num: map[string]float64{}}
-	fedBy := map[string]int{} // field -> column that gave its value
+	p := &catalog.Part{Kind: kind, Type: typ, Mfr: cleanSpaces(mfr), MPN: cleanSpaces(mpn), Num: make(map[string]float64, cv.numHint)}
+	defer func() { cv.numHint = max(cv.numHint, len(p.Num)) }()
+	if cv.fedBy == nil {
+		cv.fedBy, cv.fedCols = map[string]int{}, map[int]bool{}
+	}
+	fedBy := cv.fedBy // field -> column that gave its value
+	clear(fedBy)
 	for _, t := range [...]string{"desc", "package", "datasheet"} {
 		if v, _ := r.first(t); v != "" {
 			setText(p, t, cleanSpaces(v))
@@ -146,8 +191,9 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 	}
 
 	// numbers, left to right so the first bad cell is the one reported
+	cols := cv.columns()
 	for i, c := range lo.cols {
-		if c.Field == "" || targetDim(c.Field) == units.None {
+		if c.Field == "" || cols[i].dim == units.None {
 			continue
 		}
 		raw := r.at(i)
@@ -200,7 +246,8 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 	}
 
 	// test conditions written in headers, for rows that lack the field
-	fedCols := map[int]bool{}
+	fedCols := cv.fedCols
+	clear(fedCols)
 	for _, i := range fedBy {
 		fedCols[i] = true
 	}
@@ -326,7 +373,15 @@ func (cv *converter) number(p *catalog.Part, fedBy map[string]int, i int, c Colu
 			return nil
 		}
 	}
-	f, ok := catalog.FieldByName(target)
+	var f catalog.Field
+	var ok, signedOK bool
+	if target == c.Field {
+		ci := &cv.columns()[i]
+		f, ok, signedOK = ci.field, ci.isField, ci.signedOK
+	} else {
+		f, ok = catalog.FieldByName(target)
+		signedOK = signedFields[f.Name] || f.Dim == units.Temperature
+	}
 	if !ok {
 		return nil
 	}
@@ -344,7 +399,6 @@ func (cv *converter) number(p *catalog.Part, fedBy map[string]int, i int, c Colu
 	if c.hasPick {
 		pick = c.pick
 	}
-	signedOK := signedFields[f.Name] || f.Dim == units.Temperature
 	v, err := parseNumber(raw, f.Dim, pick, c.Unit, signedOK)
 	if errors.Is(err, units.ErrEmpty) {
 		return nil
@@ -500,7 +554,14 @@ func (cv *converter) notApplicableNotes() []string {
 // kindOf gathers what a row says about its kind and settles it.
 func (cv *converter) kindOf(r row) (catalog.Kind, string, *rowReject) {
 	lo := r.lo
-	f := kindFacts{fixed: cv.fixed, fixedType: cv.fixedType, section: cv.section, present: map[catalog.Kind][]string{}}
+	if cv.present == nil {
+		cv.present = map[catalog.Kind][]string{}
+	}
+	for k, hs := range cv.present {
+		cv.present[k] = hs[:0]
+	}
+	f := kindFacts{fixed: cv.fixed, fixedType: cv.fixedType, section: cv.section, present: cv.present, texts: cv.texts[:0]}
+	defer func() { cv.texts = f.texts[:0] }()
 	f.kindCell, _ = r.first("kind")
 	add := func(target string, exact, typeCol bool) {
 		for _, i := range lo.byField[target] {
@@ -515,8 +576,9 @@ func (cv *converter) kindOf(r row) (catalog.Kind, string, *rowReject) {
 	add(fSpeed, true, false)
 	add("desc", false, false)
 	f.desc, _ = r.first("desc")
+	cols := cv.columns()
 	for i, c := range lo.cols {
-		if k, ok := kindFields[c.Field]; ok && !isAbsent(r.at(i)) {
+		if k := cols[i].kind; k != "" && !isAbsent(r.at(i)) {
 			f.present[k] = append(f.present[k], lo.header(i, c.Field))
 		}
 	}
@@ -587,11 +649,12 @@ func positiveField(name string) bool {
 //   - a Zener has V_Z; a TVS has V_BR ≥ V_RWM and V_C ≥ V_BR
 //   - a fuse's breaking capacity is not below its rated current
 func validatePart(p *catalog.Part) (field, reason string) {
-	names := make([]string, 0, len(p.Num))
+	var buf [64]string
+	names := buf[:0]
 	for n := range p.Num {
 		names = append(names, n)
 	}
-	sort.Strings(names)
+	slices.Sort(names)
 	for _, n := range names {
 		v := p.Num[n]
 		f, _ := catalog.FieldByName(n)

@@ -19,9 +19,23 @@ var absentWords = map[string]bool{
 	"/": true,
 }
 
+// maxAbsentLen is the length in bytes of the longest absentWords entry.
+var maxAbsentLen = func() int {
+	n := 0
+	for w := range absentWords {
+		n = max(n, len(w))
+	}
+	return n
+}()
+
 // isAbsent reports a cell that means "no value".
 func isAbsent(s string) bool {
-	return absentWords[strings.ToLower(strings.TrimSpace(s))]
+	t := strings.TrimSpace(s)
+	if len(t) > maxAbsentLen {
+		// lower-casing changes the length of no absent word
+		return false
+	}
+	return absentWords[strings.ToLower(t)]
 }
 
 // parseBool reads Yes/No, Y/N, true/false, 1/0, "compliant", "RoHS
@@ -200,6 +214,9 @@ func fuseVoltages(cell, unit string) (ac, dc, plain float64, hasAC, hasDC, hasPl
 	return ac, dc, plain, hasAC, hasDC, hasPlain, nil
 }
 
+// rerateUnits strips the temperature unit from a rerating point.
+var rerateUnits = strings.NewReplacer("°C", "", "°", "", "C", "", "c", "")
+
 // parseRerate checks and normalises fuse rerating points "T:factor, ...":
 // temperatures in °C (-70 to 300), factors above 0 and at most 2, sorted
 // by temperature.
@@ -219,7 +236,7 @@ func parseRerate(s string) (string, error) {
 		if i < 0 {
 			return "", fmt.Errorf("rerating point %q is not T:factor", e)
 		}
-		tt := strings.TrimSpace(strings.NewReplacer("°C", "", "°", "", "C", "", "c", "").Replace(e[:i]))
+		tt := strings.TrimSpace(rerateUnits.Replace(e[:i]))
 		ff := strings.TrimSpace(strings.ReplaceAll(e[i+1:], ",", "."))
 		pct := strings.HasSuffix(ff, "%")
 		ff = strings.TrimSuffix(ff, "%")

@@ -5,6 +5,7 @@ import (
 	"strconv"
 	"strings"
 	"unicode"
+	"unicode/utf8"
 
 	"partsieve/catalog"
 	"partsieve/catalog/units"
@@ -228,9 +229,45 @@ var (
 // cleanSpaces turns line breaks, tabs and no-break spaces into single
 // spaces and trims.
 func cleanSpaces(s string) string {
-	return strings.Join(strings.FieldsFunc(s, func(r rune) bool {
-		return unicode.IsSpace(r) || r == '\u00a0' || r == '\u202f'
-	}), " ")
+	if spacesClean(s) {
+		return s
+	}
+	return strings.Join(strings.FieldsFunc(s, isCleanedSpace), " ")
+}
+
+func isCleanedSpace(r rune) bool {
+	return unicode.IsSpace(r) || r == '\u00a0' || r == '\u202f'
+}
+
+// spacesClean reports whether cleanSpaces would return s unchanged: no
+// space at either end, no space but single ASCII spaces between words.
+func spacesClean(s string) bool {
+	prevSpace := true // a space at the start is not clean
+	for i := 0; i < len(s); {
+		c := s[i]
+		if c < utf8.RuneSelf {
+			switch {
+			case c == ' ':
+				if prevSpace {
+					return false
+				}
+				prevSpace = true
+			case c == '\t' || c == '\n' || c == '\v' || c == '\f' || c == '\r':
+				return false
+			default:
+				prevSpace = false
+			}
+			i++
+			continue
+		}
+		r, n := utf8.DecodeRuneInString(s[i:])
+		if isCleanedSpace(r) {
+			return false
+		}
+		prevSpace = false
+		i += n
+	}
+	return !prevSpace || s == ""
 }
 
 func hasDigit(s string) bool {

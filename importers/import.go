@@ -92,6 +92,13 @@ type sink interface {
 	Rollback() error
 }
 
+// preparedSink is a sink that takes parts the catalog's Preparer checked
+// on the reading goroutine (the store's transaction).
+type preparedSink interface {
+	sink
+	PutPrepared(pp *catalog.Prepared) (catalog.Outcome, []catalog.Change, error)
+}
+
 // ImportFile imports the spreadsheet at path into st. A file that cannot be
 // read at all returns an error naming the file and the reason, and the
 // catalog is left exactly as it was. st may be nil: the file is then read
@@ -387,52 +394,92 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 	if start > 0 {
 		prevRow = buf[start-1].row
 	}
-	gap := false
-	handle := func(cells []string, row int) error {
-		if row > prevRow+1 && prevRow > 0 {
-			gap = true
+	// Reading, recognising and converting the rows (and the catalog's own
+	// checks of each part) run on a goroutine of their own, ahead of the
+	// writes on this one; batches of rows pass through a bounded channel
+	// and come back for reuse, so memory stays flat whatever the file's
+	// size. Rows, rejects and counts keep the sheet's order.
+	ps, prepared := rn.out.(preparedSink)
+	pipe := newRowPipe()
+	go func() {
+		defer pipe.close()
+		var pr *catalog.Preparer
+		if prepared {
+			pr = &catalog.Preparer{}
 		}
-		prevRow = row
-		if blank(cells) {
-			gap = true
-			return nil
-		}
-		switch classify(cells, lo, headerCells, gap) {
-		case rowNote:
-			if g := wordsGuess(onlyCell(cells), ""); g.kind != "" {
-				cv.section = g
+		gap := false
+		handle := func(cells []string, row int) bool {
+			if row > prevRow+1 && prevRow > 0 {
+				gap = true
 			}
-			return nil
-		case rowSkip:
-			return nil
+			prevRow = row
+			if blank(cells) {
+				gap = true
+				return true
+			}
+			switch classify(cells, lo, headerCells, gap) {
+			case rowNote:
+				if g := wordsGuess(onlyCell(cells), ""); g.kind != "" {
+					cv.section = g
+				}
+				return true
+			case rowSkip:
+				return true
+			}
+			gap = false
+			it := pipe.item()
+			if it == nil {
+				return false // the writer stopped
+			}
+			it.row = row
+			p, rej := cv.convert(cells)
+			if rej != nil {
+				it.rej = rej
+				return true
+			}
+			it.part = p
+			if pr != nil {
+				it.perr = pr.Prepare(p, &it.prep)
+			}
+			return true
 		}
-		gap = false
-		return rn.dataRow(cv, name, cells, row)
-	}
-	for _, b := range buf[start:] {
-		if err := handle(b.cells, b.row); err != nil {
-			return false, err
+		for _, b := range buf[start:] {
+			if !handle(b.cells, b.row) {
+				return
+			}
 		}
-	}
-	if !(fixedRow > 0 && len(buf) > 0 && buf[len(buf)-1].row < fixedRow) {
+		if fixedRow > 0 && len(buf) > 0 && buf[len(buf)-1].row < fixedRow {
+			return
+		}
 		for {
 			cells, row, err := next()
 			if err == io.EOF {
-				break
+				return
 			}
 			if err != nil {
-				return false, readErr(err)
+				pipe.fail(readErr(err))
+				return
 			}
-			if err := handle(cells, row); err != nil {
-				return false, err
+			if !handle(cells, row) {
+				return
 			}
 			if rn.rows%256 == 0 {
 				if err := rn.ctx.Err(); err != nil {
-					return false, fmt.Errorf("%s: import stopped: %w", rn.name, err)
+					pipe.fail(fmt.Errorf("%s: import stopped: %w", rn.name, err))
+					return
 				}
 				rn.progress(tbl)
 			}
 		}
+	}()
+	err = pipe.drain(func(it *rowItem) error {
+		if prepared && it.rej == nil && it.perr == nil {
+			return rn.dataRow(name, it, func() (catalog.Outcome, []catalog.Change, error) { return ps.PutPrepared(&it.prep) })
+		}
+		return rn.dataRow(name, it, func() (catalog.Outcome, []catalog.Change, error) { return rn.out.Put(it.part) })
+	})
+	if err != nil {
+		return false, err
 	}
 	rn.sum.Ignored = append(rn.sum.Ignored, rn.prefix(name, cv.notApplicableNotes())...)
 	return true, nil
@@ -489,16 +536,21 @@ func (rn *run) converter(lo *layout) *converter {
 	return cv
 }
 
-// dataRow converts and stores one data row.
-func (rn *run) dataRow(cv *converter, sheet string, cells []string, row int) error {
+// dataRow counts and stores one converted data row; put writes its part.
+func (rn *run) dataRow(sheet string, it *rowItem, put func() (catalog.Outcome, []catalog.Change, error)) error {
 	s := rn.sum
 	s.Read++
-	p, rej := cv.convert(cells)
-	if rej != nil {
+	row := it.row
+	if rej := it.rej; rej != nil {
 		s.Rejects = append(s.Rejects, Reject{File: rn.name, Sheet: sheet, Row: row, Column: rej.column, Raw: rej.raw, Reason: rej.reason})
 		return nil
 	}
-	out, changes, err := rn.out.Put(p)
+	err := it.perr
+	var out catalog.Outcome
+	var changes []catalog.Change
+	if err == nil {
+		out, changes, err = put()
+	}
 	if err != nil {
 		// The store refuses an invalid part before writing anything: a
 		// reject. Any other failure ends the import.
