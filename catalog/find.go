@@ -302,6 +302,7 @@ type condSQL struct {
 	// ranged: a comparison (< <= > >= =) on a number, which a partial
 	// index of the field's kind can serve as a range.
 	ranged bool
+	keyEq  bool // mfr_key or mpn_key = ?
 }
 
 // compileQuery validates q and turns its Kind and Conds into SQL terms.
@@ -451,7 +452,7 @@ func compileCond(c Cond) (cs condSQL, implied Kind, err error) {
 			switch f.Name {
 			case "mfr", "mpn":
 				cs := term("parts."+f.Name+"_key"+cmp+"?", NormKey(t))
-				cs.col = f.Name + "_key"
+				cs.col, cs.keyEq = f.Name+"_key", !neg
 				return cs, "", nil
 			}
 			return term(col+cmp+"? COLLATE NOCASE", t), "", nil
@@ -547,6 +548,13 @@ func (fq *findSQL) orderSQL(phase int) string {
 // for SQLite's planner to choose the plan. Phase 1 sorted on an indexed
 // column with a kind term walks a partial index and stops after LIMIT.
 // With text ids, phases 0 and 2 read the ids first.
+//
+// Without a LIMIT, the default order is written +parts.mfr_key,
+// +parts.mpn_key (the same values) unless a condition fixes the
+// manufacturer or part number: otherwise SQLite reads the order index to
+// save the sort, a random row read per part of the kind (at 1,000,000
+// parts, 7.8 s for the 300,000 fuses), where reading the table in storage
+// order and sorting is cheaper.
 func (fq *findSQL) build(phase, limit int) (string, []any) {
 	join := fq.hasIDs && phase != 1
 	where, args := joinTerms(fq.terms(phase, !join))
@@ -555,7 +563,22 @@ func (fq *findSQL) build(phase, limit int) (string, []any) {
 		from = `json_each(?) AS t CROSS JOIN parts ON parts.id = t.value`
 		args = append([]any{fq.ids}, args...)
 	}
-	return `SELECT parts.id, ` + partJSON() + ` FROM ` + from + whereSQL(where) + ` ORDER BY ` + fq.orderSQL(phase) + limitSQL(limit), args
+	order := fq.orderSQL(phase)
+	if phase != 1 && limit <= 0 && !fq.keyEquality() {
+		order = "+parts.mfr_key, +parts.mpn_key"
+	}
+	return `SELECT parts.id, ` + partJSON() + ` FROM ` + from + whereSQL(where) + ` ORDER BY ` + order + limitSQL(limit), args
+}
+
+// keyEquality reports whether a condition fixes the manufacturer or part
+// number key.
+func (fq *findSQL) keyEquality() bool {
+	for _, c := range fq.conds {
+		if c.keyEq {
+			return true
+		}
+	}
+	return false
 }
 
 // orderIndex serves the default order (manufacturer key, part number

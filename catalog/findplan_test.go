@@ -326,3 +326,44 @@ func TestRelevanceSkipsGhostHits(t *testing.T) {
 		t.Errorf("without limit: %v %v", mpns(r.Parts), err)
 	}
 }
+
+// Without a Limit every match is read, so the order index would cost a
+// random row read per part to save a sort: SQLite is kept from it, except
+// where a condition fixes the manufacturer (then the index finds that
+// maker's parts in order).
+func TestNoLimitPlansAvoidOrderIndex(t *testing.T) {
+	s := planStore(t, 300)
+	cases := []struct {
+		q        Query
+		useOrder bool
+	}{
+		{Query{Kind: Fuse}, false},
+		{Query{}, false},
+		{Query{Kind: Diode, Conds: []Cond{{Field: "type", Op: "=", Text: "zener"}}}, false},
+		{Query{Conds: []Cond{{Field: "mfr", Op: "!=", Text: "Sable Semi"}}}, false},
+		{Query{Conds: []Cond{{Field: "mfr", Op: "=", Text: "Sable Semi"}}}, true},
+	}
+	for _, c := range cases {
+		fq, err := compileQuery(c.q)
+		if err != nil {
+			t.Fatal(err)
+		}
+		stmt, args := fq.build(0, 0)
+		rows, err := s.db.Query("EXPLAIN QUERY PLAN "+stmt, args...)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var plan []string
+		for rows.Next() {
+			var id, parent, notused int
+			var detail string
+			rows.Scan(&id, &parent, &notused, &detail)
+			plan = append(plan, detail)
+		}
+		rows.Close()
+		p := strings.Join(plan, "; ")
+		if strings.Contains(p, orderIndex) != c.useOrder {
+			t.Errorf("%+v: plan %s", c.q, p)
+		}
+	}
+}
