@@ -117,7 +117,7 @@ func (e *engine) cost(p *catalog.Part) *partCost {
 	if c, ok := e.costs[p]; ok {
 		return c
 	}
-	c := computeCost(e.cat.detail(p), e.s.Build.Quantity, e.s.Build.Currency, e.s.Build.Rates)
+	c := computeCost(p, e.s.Build.Quantity, e.s.Build.Currency, e.s.Build.Rates)
 	e.costs[p] = c
 	return c
 }

@@ -487,7 +487,7 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 		return z
 	}
 	costOf := func(z *diodeRec) float64 {
-		c := e.cost(z.p).unit
+		c := e.cost(e.cat.part(z.p, z.cid)).unit
 		if math.IsNaN(c) {
 			return math.Inf(1)
 		}
@@ -507,11 +507,11 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 		win = append(win, ch)
 	}
 	fetch := func(list []zchoice) {
-		ps, ids := make([]*catalog.Part, len(list)), make([]int64, len(list))
+		ids := make([]int64, len(list))
 		for i := range list {
-			ps[i], ids[i] = list[i].z.p, list[i].z.cid
+			ids[i] = list[i].z.cid
 		}
-		e.cat.needOffers(ps, ids)
+		e.cat.needOffers(ids)
 	}
 	if e.opt.Rank == RankCost {
 		fetch(win)
@@ -560,7 +560,7 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 		for i := 1; i < len(tied); i++ {
 			ch := &tied[i]
 			t := tieOf(ch)
-			if t < bestTie || t == bestTie && ch.z.p.MPN < best.z.p.MPN {
+			if t < bestTie || t == bestTie && ch.z.mpn < best.z.mpn {
 				best, bestTie = ch, t
 			}
 		}
@@ -696,7 +696,7 @@ func (e *engine) fet(t *fetRec, nfet bool, c *checker) (m metrics, zc *zchoice) 
 			return
 		}
 		if c.rec {
-			c.note(fmt.Sprintf("the input reaches %s > %s: Zener %s clamps the gate; %s", fmtV(stress), fmtV(vgsLim), zc.z.p.MPN, factorNote(pr.KVGS)))
+			c.note(fmt.Sprintf("the input reaches %s > %s: Zener %s clamps the gate; %s", fmtV(stress), fmtV(vgsLim), zc.z.mpn, factorNote(pr.KVGS)))
 			c.add(feZener, zc.vzMax, vgsLim)
 			c.note(fmt.Sprintf("V_Z = %s ± %.0f %%: %s…%s", fmtV(zc.z.vz), 100*zc.z.vzTol, fmtV(zc.vzMin), fmtV(zc.vzMax)))
 			c.add(feZenerDrive, zc.vzMin, vRated)

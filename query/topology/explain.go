@@ -339,7 +339,7 @@ func (e *engine) explainZener(z *diodeRec) []RoleReport {
 				if chosen.z == z {
 					r.Note += "; this Zener is the one chosen for the window"
 				} else {
-					r.Note += "; the chosen Zener is " + chosen.z.p.MPN
+					r.Note += "; the chosen Zener is " + chosen.z.mpn
 				}
 			}
 			out = append(out, r)

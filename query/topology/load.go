@@ -8,6 +8,7 @@ import (
 	"runtime/debug"
 	"slices"
 	"strings"
+	"sync"
 
 	"partsieve/catalog"
 	"partsieve/query/spec"
@@ -317,7 +318,8 @@ func (pf *prefilter) numConds(cs *catalog.ColumnSet) ([]numCond, error) {
 // memory, the parts that pass become light parts with their records, and
 // the full parts of those shown are read later from the same view. The
 // result equals load's (same parts, same eliminations).
-func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Options) (*Catalog, map[Topology][]Elimination, error) {
+func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Options) (c *Catalog, pre map[Topology][]Elimination, restoreGC func(), err error) {
+	restoreGC = func() {}
 	var pfs []prefilter
 	for _, pf := range prefilters(s) {
 		for _, t := range pf.topos {
@@ -336,9 +338,23 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 		return false
 	})
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, restoreGC, err
 	}
 	defer cols.Close() // the records below copy what they need
+	// From here the pick allocates its working set (records, then the
+	// evaluation's arrays; about 300 MB at a million parts) in one go and
+	// drops it at the end: collections while it grows would only trace it
+	// again and again (a third of the CPU time of a pick at a million
+	// parts). The collector is off until Pick returns unless the process
+	// passes pickMemoryLimit (or a lower GOMEMLIMIT). Not before: a stale
+	// column file is rebuilt above, which makes garbage row by row.
+	lim := debug.SetMemoryLimit(-1)
+	gc := debug.SetGCPercent(-1)
+	debug.SetMemoryLimit(min(lim, pickMemoryLimit))
+	restoreGC = func() {
+		debug.SetGCPercent(gc)
+		debug.SetMemoryLimit(lim)
+	}
 	// first pass: which rows some pre-filter keeps, and the counts
 	keep := make([][]int32, len(cols.Sets))
 	total, have := make([]int, len(pfs)), make([]int, len(pfs))
@@ -351,7 +367,7 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 			if pf.setMatch(cs.Kind, cs.Type) {
 				c, err := pf.numConds(cs)
 				if err != nil {
-					return nil, nil, err
+					return nil, nil, restoreGC, err
 				}
 				conds = append(conds, c)
 			}
@@ -382,17 +398,16 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 			}
 		}
 	}
-	// second pass: light parts (one allocation, so pointers stay put) and
-	// their records
-	parts := make([]catalog.Part, n)
+	// second pass: the records (without parts: their part numbers and
+	// catalog ids stand in until the few shown are read in full)
 	var nr [5]int
 	for si, cs := range cols.Sets {
 		if r := roleOf(cs); r >= 0 {
 			nr[r] += len(keep[si])
 		}
 	}
-	c := &Catalog{parts: parts, diodes: make([]diodeRec, 0, nr[roleDiode]), zeners: make([]diodeRec, 0, nr[roleZener]),
-		fuses: make([]fuseRec, 0, nr[roleFuse]), pfets: make([]fetRec, 0, nr[rolePFET]), nfets: make([]fetRec, 0, nr[roleNFET]), lazy: &lazyParts{
+	c = &Catalog{diodes: hugeMake[diodeRec](nr[roleDiode]), zeners: hugeMake[diodeRec](nr[roleZener]),
+		fuses: hugeMake[fuseRec](nr[roleFuse]), pfets: hugeMake[fetRec](nr[rolePFET]), nfets: hugeMake[fetRec](nr[roleNFET]), lazy: &lazyParts{
 			fetch:  func(ids []int64) ([]catalog.Part, []int64, error) { return view.Parts(ctx, ids) },
 			offers: func(ids []int64) (map[int64][]catalog.Offer, error) { return view.Offers(ctx, ids) },
 		}}
@@ -409,59 +424,59 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 			c.skipped += len(keep[si])
 		}
 	}
-	at := 0
+	// the roles are built in parallel (each writes its own slice)
+	var wg sync.WaitGroup
 	for r, sets := range roles {
-		pos := make([]int, len(sets))
-		for {
-			best, bestOrd := -1, uint32(0)
-			for j, si := range sets {
-				if pos[j] < len(keep[si]) {
-					if o := cols.Sets[si].Ord[keep[si][pos[j]]]; best < 0 || o < bestOrd {
-						best, bestOrd = j, o
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			pos := make([]int, len(sets))
+			for {
+				best, bestOrd := -1, uint32(0)
+				for j, si := range sets {
+					if pos[j] < len(keep[si]) {
+						if o := cols.Sets[si].Ord[keep[si][pos[j]]]; best < 0 || o < bestOrd {
+							best, bestOrd = j, o
+						}
+					}
+				}
+				if best < 0 {
+					break
+				}
+				si := sets[best]
+				cs := cols.Sets[si]
+				i := int(keep[si][pos[best]])
+				pos[best]++
+				src := colNums{cols: &rcs[si], i: i}
+				mpn := cs.MPN(i)
+				id := cs.ID[i]
+				switch r {
+				case roleDiode, roleZener:
+					d := newDiodeRec(nil, mpn, cs.Type, src)
+					d.cid = id
+					if r == roleDiode {
+						c.diodes = append(c.diodes, d)
+					} else {
+						c.zeners = append(c.zeners, d)
+					}
+				case roleFuse:
+					f := newFuseRec(nil, mpn, cs.FuseStd(i), cs.Rerate(i), src)
+					f.cid = id
+					c.fuses = append(c.fuses, f)
+				default:
+					t := newFETRec(nil, mpn, src)
+					t.cid = id
+					if r == rolePFET {
+						c.pfets = append(c.pfets, t)
+					} else {
+						c.nfets = append(c.nfets, t)
 					}
 				}
 			}
-			if best < 0 {
-				break
-			}
-			si := sets[best]
-			cs := cols.Sets[si]
-			i := int(keep[si][pos[best]])
-			pos[best]++
-			p := &parts[at]
-			at++
-			p.Kind, p.Type, p.Mfr, p.MPN = cs.Kind, cs.Type, cs.Mfr(i), cs.MPN(i)
-			if cs.Kind == catalog.Fuse {
-				p.FuseStd, p.Rerate = cs.FuseStd(i), cs.Rerate(i)
-			}
-			src := colNums{cols: &rcs[si], i: i}
-			id := cs.ID[i]
-			switch r {
-			case roleDiode, roleZener:
-				d := newDiodeRec(p, src)
-				d.cid = id
-				if r == roleDiode {
-					c.diodes = append(c.diodes, d)
-				} else {
-					c.zeners = append(c.zeners, d)
-				}
-			case roleFuse:
-				f := newFuseRec(p, src)
-				f.cid = id
-				c.fuses = append(c.fuses, f)
-			default:
-				t := newFETRec(p, src)
-				t.cid = id
-				if r == rolePFET {
-					c.pfets = append(c.pfets, t)
-				} else {
-					c.nfets = append(c.nfets, t)
-				}
-			}
-		}
+		}()
 	}
-	c.parts = parts[:at]
-	pre := map[Topology][]Elimination{}
+	wg.Wait()
+	pre = map[Topology][]Elimination{}
 	for k := range pfs {
 		pf := &pfs[k]
 		if pf.label == "" {
@@ -473,7 +488,7 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 			}
 		}
 	}
-	return c, pre, nil
+	return c, pre, restoreGC, nil
 }
 
 // The record slices of a Catalog, as NewCatalog sorts parts into them.
@@ -525,16 +540,13 @@ func pickColumns(ctx context.Context, v viewer, s *spec.Spec, opt Options) (*Res
 	// only trace it again and again (a third of the CPU time of a pick at
 	// a million parts). The collector is off during the pick unless the
 	// process passes pickMemoryLimit (or a lower GOMEMLIMIT).
-	lim := debug.SetMemoryLimit(-1)
-	defer debug.SetMemoryLimit(lim)
-	defer debug.SetGCPercent(debug.SetGCPercent(-1))
-	debug.SetMemoryLimit(min(lim, pickMemoryLimit))
 	view, err := v.View(ctx)
 	if err != nil {
 		return nil, fmt.Errorf("pick: %w", err)
 	}
 	defer view.Close()
-	cat, pre, err := loadColumns(ctx, view, s, opt.withDefaults())
+	cat, pre, restoreGC, err := loadColumns(ctx, view, s, opt.withDefaults())
+	defer restoreGC()
 	if err != nil {
 		return nil, fmt.Errorf("pick: %w: %w", errColumns, err)
 	}

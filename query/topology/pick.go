@@ -14,8 +14,9 @@ import (
 // cand is a qualifying design during ranking: indices into the role
 // slices, the parts (for names and costs) and the figures it is ranked by.
 type cand struct {
-	a, b      int // part indices (diode, fuse, FET); b: shunt diode of a pair, else -1
-	pa, pb    *catalog.Part
+	a, b      int           // part indices (diode, fuse, FET); b: shunt diode of a pair, else -1
+	pa, pb    *catalog.Part // nil in column catalogs until the candidate is shown
+	ma, mb    string        // part numbers of a and b (mb "" when none)
 	z         *zchoice
 	m         metrics
 	margin    float64
@@ -175,11 +176,11 @@ func (e *engine) less(x, y *cand) bool {
 	if x.margin != y.margin {
 		return x.margin > y.margin
 	}
-	if x.pa.MPN != y.pa.MPN {
-		return x.pa.MPN < y.pa.MPN
+	if x.ma != y.ma {
+		return x.ma < y.ma
 	}
-	if x.pb != nil && y.pb != nil {
-		return x.pb.MPN < y.pb.MPN
+	if x.mb != "" && y.mb != "" && x.mb != y.mb {
+		return x.mb < y.mb
 	}
 	return x.a < y.a
 }
@@ -204,7 +205,6 @@ func (e *engine) costOf(x *cand) {
 
 func (e *engine) partRef(role string, p *catalog.Part) PartRef {
 	pc := e.cost(p)
-	p = e.cat.detail(p)
 	return PartRef{Role: role, Mfr: p.Mfr, MPN: p.MPN, Type: p.Type, Package: p.Package,
 		UnitPrice: Num(pc.unit), Supplier: pc.supplier, Stock: pc.stock, PriceNote: pc.note}
 }
@@ -296,24 +296,23 @@ func (e *engine) runSeries() TopologyResult {
 			counts[c.first]++
 			continue
 		}
-		top.push(cand{a: i, b: -1, pa: d.p, m: m, margin: c.minMargin, marginID: c.minID})
+		top.push(cand{a: i, b: -1, pa: d.p, ma: d.mpn, m: m, margin: c.minMargin, marginID: c.minID})
 	}
 	cs := top.sorted()
 	tr.Qualified = top.count
-	var need []*catalog.Part
 	var ids []int64
 	for k := range cs {
-		d := &e.cat.diodes[cs[k].a]
-		need, ids = append(need, d.p), append(ids, d.cid)
+		ids = append(ids, e.cat.diodes[cs[k].a].cid)
 	}
-	e.cat.need(need, ids)
+	e.cat.need(ids)
 	for k := range cs {
 		x := &cs[k]
 		d := &e.cat.diodes[x.a]
 		c.reset(true, e.s.Ambient.TMax)
 		e.seriesDiode(d, &c)
+		x.pa = e.cat.part(d.p, d.cid)
 		e.costOf(x)
-		cd := e.candidate(k+1, x, []PartRef{e.partRef("diode", d.p)}, append([]Check(nil), c.checks...))
+		cd := e.candidate(k+1, x, []PartRef{e.partRef("diode", x.pa)}, append([]Check(nil), c.checks...))
 		if d.schottky {
 			cd.Hazards = append(cd.Hazards, "Schottky: leakage rises steeply with temperature; see the reverse-bias check")
 		}
@@ -341,9 +340,9 @@ func (e *engine) runFET(nfet bool) TopologyResult {
 		t := &fets[i]
 		c.reset(false, e.s.Ambient.TMax)
 		m, z := e.fet(t, nfet, &c)
-		x := cand{a: i, b: -1, pa: t.p, z: z, m: m, margin: c.minMargin, marginID: c.minID}
+		x := cand{a: i, b: -1, pa: t.p, ma: t.mpn, z: z, m: m, margin: c.minMargin, marginID: c.minID}
 		if z != nil {
-			x.pb = z.z.p
+			x.pb, x.mb = z.z.p, z.z.mpn
 		}
 		if c.failed {
 			counts[c.first]++
@@ -357,26 +356,28 @@ func (e *engine) runFET(nfet bool) TopologyResult {
 	tr.Qualified = top.count
 	build := func(list []cand) []Candidate {
 		var res []Candidate
-		var need []*catalog.Part
 		var ids []int64
 		for k := range list {
-			t := &fets[list[k].a]
-			need, ids = append(need, t.p), append(ids, t.cid)
+			ids = append(ids, fets[list[k].a].cid)
 			if z := list[k].z; z != nil {
-				need, ids = append(need, z.z.p), append(ids, z.z.cid)
+				ids = append(ids, z.z.cid)
 			}
 		}
-		e.cat.need(need, ids)
+		e.cat.need(ids)
 		for k := range list {
 			x := &list[k]
 			t := &fets[x.a]
 			c.reset(true, e.s.Ambient.TMax)
 			_, z := e.fet(t, nfet, &c)
+			x.pa = e.cat.part(t.p, t.cid)
+			if z != nil {
+				x.pb = e.cat.part(z.z.p, z.z.cid)
+			}
 			e.costOf(x)
-			refs := []PartRef{e.partRef("mosfet", t.p)}
+			refs := []PartRef{e.partRef("mosfet", x.pa)}
 			var gr *GateResistor
 			if z != nil {
-				refs = append(refs, e.partRef("zener", z.z.p))
+				refs = append(refs, e.partRef("zener", x.pb))
 				gr = &GateResistor{Value: Num(z.rg), Power: Num(z.prg), PowerSteady: Num(z.prgSteady),
 					Rating: GateResistorRating, Quiescent: Num(z.iq)}
 			}

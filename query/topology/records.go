@@ -1,6 +1,7 @@
 package topology
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"sync"
@@ -32,21 +33,23 @@ type Catalog struct {
 	lazy *lazyParts
 }
 
-// lazyParts fetches and keeps the full forms of light parts, or only
-// their offers where only a cost is needed.
+// lazyParts fetches and keeps, by catalog id, the full forms of the parts
+// of a catalog read from columns, or only their offers where only a cost
+// is needed. The records of such a catalog have no part (p is nil): their
+// part numbers are in the records, the rest is fetched for the few parts
+// shown or costed.
 type lazyParts struct {
 	fetch  func(ids []int64) ([]catalog.Part, []int64, error)
 	offers func(ids []int64) (map[int64][]catalog.Offer, error)
 	mu     sync.Mutex
-	full   map[*catalog.Part]*catalog.Part
-	priced map[*catalog.Part]*catalog.Part // light part with its offers
+	full   map[int64]*catalog.Part
+	priced map[int64]*catalog.Part // kind, part number and offers only
 	err    error
 }
 
-// need makes sure the full forms of the light parts ps (ids[i] is the id
-// of ps[i]) are at hand; a no-op for catalogs of full parts. A read error
-// is kept for Pick to return.
-func (c *Catalog) need(ps []*catalog.Part, ids []int64) {
+// need makes sure the full parts of the given catalog ids are at hand; a
+// no-op for catalogs of full parts. A read error is kept for Pick.
+func (c *Catalog) need(ids []int64) {
 	lz := c.lazy
 	if lz == nil {
 		return
@@ -54,15 +57,12 @@ func (c *Catalog) need(ps []*catalog.Part, ids []int64) {
 	lz.mu.Lock()
 	defer lz.mu.Unlock()
 	var want []int64
-	at := map[int64][]*catalog.Part{}
-	for i, p := range ps {
-		if p == nil || lz.full[p] != nil {
-			continue
+	seen := map[int64]bool{}
+	for _, id := range ids {
+		if lz.full[id] == nil && !seen[id] {
+			seen[id] = true
+			want = append(want, id)
 		}
-		if _, ok := at[ids[i]]; !ok {
-			want = append(want, ids[i])
-		}
-		at[ids[i]] = append(at[ids[i]], p)
 	}
 	if len(want) == 0 {
 		return
@@ -75,19 +75,16 @@ func (c *Catalog) need(ps []*catalog.Part, ids []int64) {
 		return
 	}
 	if lz.full == nil {
-		lz.full = map[*catalog.Part]*catalog.Part{}
+		lz.full = map[int64]*catalog.Part{}
 	}
 	for i := range got {
-		fp := &got[i]
-		for _, p := range at[gotIDs[i]] {
-			lz.full[p] = fp
-		}
+		lz.full[gotIDs[i]] = &got[i]
 	}
 }
 
-// needOffers makes sure the offers of the light parts ps are at hand (for
-// their cost), without reading the parts in full.
-func (c *Catalog) needOffers(ps []*catalog.Part, ids []int64) {
+// needOffers makes sure the offers of the given catalog ids are at hand
+// (for their cost), without reading the parts in full.
+func (c *Catalog) needOffers(ids []int64) {
 	lz := c.lazy
 	if lz == nil {
 		return
@@ -95,9 +92,11 @@ func (c *Catalog) needOffers(ps []*catalog.Part, ids []int64) {
 	lz.mu.Lock()
 	defer lz.mu.Unlock()
 	var want []int64
-	for i, p := range ps {
-		if lz.full[p] == nil && lz.priced[p] == nil {
-			want = append(want, ids[i])
+	seen := map[int64]bool{}
+	for _, id := range ids {
+		if lz.full[id] == nil && lz.priced[id] == nil && !seen[id] {
+			seen[id] = true
+			want = append(want, id)
 		}
 	}
 	if len(want) == 0 {
@@ -111,34 +110,33 @@ func (c *Catalog) needOffers(ps []*catalog.Part, ids []int64) {
 		return
 	}
 	if lz.priced == nil {
-		lz.priced = map[*catalog.Part]*catalog.Part{}
+		lz.priced = map[int64]*catalog.Part{}
 	}
-	for i, p := range ps {
-		if lz.full[p] != nil || lz.priced[p] != nil {
-			continue
-		}
-		cp := *p
-		cp.Offers = got[ids[i]]
-		lz.priced[p] = &cp
+	for _, id := range want {
+		lz.priced[id] = &catalog.Part{Offers: got[id]}
 	}
 }
 
-// detail returns the full form of p when it was fetched, else p with its
-// offers when those were, else p.
-func (c *Catalog) detail(p *catalog.Part) *catalog.Part {
-	lz := c.lazy
-	if lz == nil {
+// part returns the part of a record: p itself in a catalog of full parts,
+// else the fetched full part of catalog id cid, else its offers only
+// (enough for a cost). Call need or needOffers first.
+func (c *Catalog) part(p *catalog.Part, cid int64) *catalog.Part {
+	if p != nil || c.lazy == nil {
 		return p
 	}
+	lz := c.lazy
 	lz.mu.Lock()
 	defer lz.mu.Unlock()
-	if fp := lz.full[p]; fp != nil {
+	if fp := lz.full[cid]; fp != nil {
 		return fp
 	}
-	if pp := lz.priced[p]; pp != nil {
+	if pp := lz.priced[cid]; pp != nil {
 		return pp
 	}
-	return p
+	if lz.err == nil {
+		lz.err = fmt.Errorf("part %d used before it was read", cid)
+	}
+	return &catalog.Part{}
 }
 
 // NewCatalog prepares parts for evaluation. The slice is kept, not
@@ -149,7 +147,7 @@ func NewCatalog(parts []catalog.Part) *Catalog {
 		p := &parts[i]
 		switch p.Kind {
 		case catalog.Diode:
-			d := newDiodeRec(p, partNums{p})
+			d := newDiodeRec(p, p.MPN, p.Type, partNums{p})
 			switch strings.ToLower(p.Type) {
 			case "rectifier", "schottky":
 				c.diodes = append(c.diodes, d)
@@ -159,13 +157,13 @@ func NewCatalog(parts []catalog.Part) *Catalog {
 				c.skipped++
 			}
 		case catalog.Fuse:
-			c.fuses = append(c.fuses, newFuseRec(p, partNums{p}))
+			c.fuses = append(c.fuses, newFuseRec(p, p.MPN, p.FuseStd, p.Rerate, partNums{p}))
 		case catalog.MOSFET:
 			switch strings.ToLower(p.Type) {
 			case "p":
-				c.pfets = append(c.pfets, newFETRec(p, partNums{p}))
+				c.pfets = append(c.pfets, newFETRec(p, p.MPN, partNums{p}))
 			case "n":
-				c.nfets = append(c.nfets, newFETRec(p, partNums{p}))
+				c.nfets = append(c.nfets, newFETRec(p, p.MPN, partNums{p}))
 			default:
 				c.skipped++
 			}
@@ -262,7 +260,8 @@ func orDefault(v, def float64) float64 {
 
 type diodeRec struct {
 	p        *catalog.Part
-	cid      int64 // catalog id of a light part (0 otherwise)
+	cid      int64  // catalog id (column catalogs; p is then nil)
+	mpn      string // part number (ties are broken on it)
 	class    physics.DiodeClass
 	schottky bool
 	vrrm     float64
@@ -280,9 +279,9 @@ type diodeRec struct {
 	leakOK   bool
 }
 
-func newDiodeRec(p *catalog.Part, src numSource) diodeRec {
+func newDiodeRec(p *catalog.Part, mpn, typ string, src numSource) diodeRec {
 	d := diodeRec{
-		p: p, class: physics.DiodeClassOf(strings.ToLower(p.Type)),
+		p: p, mpn: mpn, class: physics.DiodeClassOf(strings.ToLower(typ)),
 		vrrm: src.num(n_vrrm), ifav: src.num(n_ifav), ifsm: src.num(n_ifsm),
 		ifsmT: orDefault(src.num(n_ifsm_t), physics.JEDECSurgeTime),
 		rth:   src.num(n_rthja), tjmax: src.num(n_tjmax), pd: src.num(n_pd),
@@ -334,6 +333,7 @@ func (d *diodeRec) surgeI2tAt(k, t float64) float64 {
 type fuseRec struct {
 	p         *catalog.Part
 	cid       int64
+	mpn       string
 	in        float64
 	undc      float64
 	unac      float64
@@ -348,16 +348,16 @@ type fuseRec struct {
 	rerateBad bool
 }
 
-func newFuseRec(p *catalog.Part, src numSource) fuseRec {
-	f := fuseRec{p: p, in: src.num(n_in), undc: src.num(n_un_dc), unac: src.num(n_un_ac),
+func newFuseRec(p *catalog.Part, mpn, std, rerate string, src numSource) fuseRec {
+	f := fuseRec{p: p, mpn: mpn, in: src.num(n_in), undc: src.num(n_un_dc), unac: src.num(n_un_ac),
 		breaking: src.num(n_breaking), i2t: src.num(n_i2t), i2tClear: src.num(n_i2t_clear), rcold: src.num(n_rcold)}
-	if s, err := physics.ParseFuseStd(p.FuseStd); err == nil && p.FuseStd != "" {
+	if s, err := physics.ParseFuseStd(std); err == nil && std != "" {
 		f.std, f.stdKnown = s, true
 	} else {
 		f.std = physics.FuseUL // the stricter 75 % rule when the convention is unknown
 	}
-	if strings.TrimSpace(p.Rerate) != "" {
-		if c, err := physics.ParseRerate(p.Rerate); err == nil {
+	if strings.TrimSpace(rerate) != "" {
+		if c, err := physics.ParseRerate(rerate); err == nil {
 			f.rerate, f.hasRerate = c, true
 		} else {
 			f.rerateBad = true
@@ -383,6 +383,7 @@ func (f *fuseRec) clearing() physics.ClearingI2t {
 type fetRec struct {
 	p      *catalog.Part
 	cid    int64
+	mpn    string
 	vds    float64
 	id     float64
 	vgsMax float64
@@ -394,8 +395,8 @@ type fetRec struct {
 	gateOK bool
 }
 
-func newFETRec(p *catalog.Part, src numSource) fetRec {
-	t := fetRec{p: p, vds: src.num(n_vds), id: src.num(n_id), vgsMax: src.num(n_vgs_max), vgsTh: src.num(n_vgs_th),
+func newFETRec(p *catalog.Part, mpn string, src numSource) fetRec {
+	t := fetRec{p: p, mpn: mpn, vds: src.num(n_vds), id: src.num(n_id), vgsMax: src.num(n_vgs_max), vgsTh: src.num(n_vgs_th),
 		rth: src.num(n_rthja), tjmax: src.num(n_tjmax), pd: src.num(n_pd)}
 	r1, v1 := src.num(n_rdson), src.num(n_rdson_vgs)
 	if has(r1) && has(v1) {

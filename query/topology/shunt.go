@@ -7,7 +7,6 @@ import (
 	"slices"
 	"sort"
 
-	"partsieve/catalog"
 	"partsieve/query/physics"
 )
 
@@ -62,7 +61,7 @@ func (e *engine) runShunt() TopologyResult {
 	var counts [numChecks]int
 	var c checker
 
-	fs := make([]fuseS, 0, len(e.cat.fuses))
+	fs := hugeMake[fuseS](len(e.cat.fuses))
 	for i := range e.cat.fuses {
 		c.reset(false, s.Ambient.TMax)
 		m := e.fuse(&e.cat.fuses[i], &c)
@@ -73,7 +72,7 @@ func (e *engine) runShunt() TopologyResult {
 		fs = append(fs, fuseS{idx: i, m: m, margin: c.minMargin, marginID: c.minID})
 	}
 	vrev, vrm := s.Supply.VReverse, s.Load.VReverseMax
-	ds := make([]shuntD, 0, len(e.cat.diodes))
+	ds := hugeMake[shuntD](len(e.cat.diodes))
 	tpMin := math.Inf(1)
 	for i := range e.cat.diodes {
 		d := &e.cat.diodes[i]
@@ -201,7 +200,7 @@ func (e *engine) runShunt() TopologyResult {
 					}
 					continue
 				}
-				x := cand{a: f.idx, b: dd.idx, pa: fr.p, pb: e.cat.diodes[dd.idx].p, m: pm, margin: c.minMargin, marginID: c.minID}
+				x := cand{a: f.idx, b: dd.idx, pa: fr.p, pb: e.cat.diodes[dd.idx].p, ma: fr.mpn, mb: e.cat.diodes[dd.idx].mpn, m: pm, margin: c.minMargin, marginID: c.minID}
 				if f.margin < x.margin {
 					x.margin, x.marginID = f.margin, f.marginID
 				}
@@ -228,13 +227,11 @@ func (e *engine) runShunt() TopologyResult {
 	}
 	tr.Qualified = pairs.count
 	ps := pairs.sorted()
-	var need []*catalog.Part
 	var ids []int64
 	for k := range ps {
-		fr, d := &e.cat.fuses[ps[k].a], &e.cat.diodes[ps[k].b]
-		need, ids = append(need, fr.p, d.p), append(ids, fr.cid, d.cid)
+		ids = append(ids, e.cat.fuses[ps[k].a].cid, e.cat.diodes[ps[k].b].cid)
 	}
-	e.cat.need(need, ids)
+	e.cat.need(ids)
 	for k := range ps {
 		x := &ps[k]
 		fr, d := &e.cat.fuses[x.a], &e.cat.diodes[x.b]
@@ -243,8 +240,9 @@ func (e *engine) runShunt() TopologyResult {
 		dmet := e.shuntDiode(d, &c)
 		fm, _ := e.forward(d)
 		e.pair(fr, fmet, d, dmet, &fm, &c)
+		x.pa, x.pb = e.cat.part(fr.p, fr.cid), e.cat.part(d.p, d.cid)
 		e.costOf(x)
-		cd := e.candidate(k+1, x, []PartRef{e.partRef("fuse", fr.p), e.partRef("shunt-diode", d.p)}, append([]Check(nil), c.checks...))
+		cd := e.candidate(k+1, x, []PartRef{e.partRef("fuse", x.pa), e.partRef("shunt-diode", x.pb)}, append([]Check(nil), c.checks...))
 		cd.FaultCurrent, cd.ClampVoltage = Num(x.m.iFault), Num(x.m.vClamp)
 		if fr.clearing().Estimated {
 			cd.Hazards = append(cd.Hazards, "fuse clearing I²t estimated from its melting I²t")
