@@ -650,11 +650,13 @@ type access struct {
 //     index (cost: the entries, counted in the index without reading
 //     rows), sort the matches and keep limit.
 //   - ids: read the text-search hits by id, then the same.
+//   - mpn: read the rows of a part number given by a condition (the key
+//     index), then the same.
 //   - scan: read the whole table in order of storage (cost: rows ×
 //     scanRowCost), then the same.
 //
-// A range or ids path of at most walkProbe rows is taken at once, and
-// the cheapest of range, ids and scan when there is no walk. Otherwise
+// A range, ids or mpn path of at most walkProbe rows is taken at once,
+// and the cheapest of them and scan when there is no walk. Otherwise
 // the walk reads a budget of rows (at least walkProbe), and, while it
 // has fewer than limit matches, a budget twice as large after the last
 // row read, as long as walkOn expects the rest to cost less than the best
@@ -788,7 +790,7 @@ func hasParamIndex(k Kind, field string) bool {
 	return false
 }
 
-// bestOther returns the cheapest of the range, ids and scan paths of
+// bestOther returns the cheapest of the range, ids, mpn and scan paths of
 // phase (see pickPhase), counting at most capCount entries of a range.
 func (fq *findSQL) bestOther(ctx context.Context, tx *sql.Tx, phase, limit, capCount int) (access, error) {
 	order := " ORDER BY " + fq.orderSQL(phase) + limitSQL(limit)
@@ -804,6 +806,20 @@ func (fq *findSQL) bestOther(ctx context.Context, tx *sql.Tx, phase, limit, capC
 		best = access{what: "ids", cost: float64(fq.nIDs),
 			stmt: `SELECT parts.id FROM json_each(?) AS t CROSS JOIN parts ON parts.id = t.value` + whereSQL(w) + order,
 			args: append([]any{fq.ids}, a...)}
+	}
+	for _, c := range fq.conds {
+		if c.keyEq && c.col == "mpn_key" {
+			// the key index (mpn_key, mfr_key) finds the part number's
+			// rows; SQLite's planner takes it for this term
+			var n int
+			if err := tx.QueryRowContext(ctx, `SELECT count(*) FROM (SELECT 1 FROM parts WHERE `+c.expr+limitSQL(capCount)+`)`, c.args...).Scan(&n); err != nil {
+				return access{}, err
+			}
+			if float64(n) < best.cost {
+				best = access{what: "mpn", cost: float64(n), stmt: `SELECT parts.id FROM parts` + whereSQL(where) + order, args: args}
+			}
+			break
+		}
 	}
 	if len(fq.kinds) != 1 {
 		return best, nil

@@ -32,8 +32,8 @@ func planStore(t *testing.T, n int) *Store {
 
 // randomQuery makes a query of the kinds find gets: a kind or not, up to
 // three conditions (ranges on indexed and other ratings, types, packages,
-// makers), a sort field or the default order, text or not.
-func randomQuery(rng *rand.Rand) Query {
+// makers, one of mpns), a sort field or the default order, text or not.
+func randomQuery(rng *rand.Rand, mpns []string) Query {
 	var q Query
 	if rng.IntN(3) > 0 {
 		q.Kind = []Kind{Diode, MOSFET, Fuse}[rng.IntN(3)]
@@ -52,7 +52,9 @@ func randomQuery(rng *rand.Rand) Query {
 		if k == "" {
 			k = []Kind{Diode, MOSFET, Fuse}[rng.IntN(3)]
 		}
-		switch rng.IntN(6) {
+		switch rng.IntN(7) {
+		case 6:
+			q.Conds = append(q.Conds, Cond{Field: "mpn", Op: "=", Text: mpns[rng.IntN(len(mpns))]})
 		case 0:
 			q.Conds = append(q.Conds, Cond{Field: "type", Op: "=", Text: map[Kind][]string{Diode: {"schottky", "zener"}, MOSFET: {"n", "p"}, Fuse: {"T", "FF"}}[k][rng.IntN(2)]})
 		case 1:
@@ -86,7 +88,7 @@ func TestPickedPathsGiveTheFullQueryPrefix(t *testing.T) {
 	defer func() { walkProbe, walkPatience = savedProbe, savedPatience }()
 	paths := map[string]int{}
 	tracePick = func(phase int, path string, other float64) {
-		for _, p := range []string{"walk find_order", "walk parts_", ", then ", "ids", "scan"} {
+		for _, p := range []string{"walk find_order", "walk parts_", ", then ", "ids", "scan", "mpn"} {
 			if strings.Contains(path, p) {
 				paths[p]++
 			}
@@ -97,11 +99,15 @@ func TestPickedPathsGiveTheFullQueryPrefix(t *testing.T) {
 	}
 	defer func() { tracePick = func(int, string, float64) {} }()
 	rng := rand.New(rand.NewPCG(3, 9))
+	var some []string
+	for _, p := range findAll(t, s)[:40] {
+		some = append(some, p.MPN)
+	}
 	for i := range 300 {
 		// small budgets and both patiences, so that on 3,000 parts the
 		// walks take several budgets and sometimes give up
 		walkProbe, walkPatience = 4+rng.IntN(3)*20, []float64{1, 32}[rng.IntN(2)]
-		q := randomQuery(rng)
+		q := randomQuery(rng, some)
 		got, err := s.Search(ctx, q)
 		if err != nil {
 			t.Fatalf("%d %+v: %v", i, q, err)
@@ -123,7 +129,7 @@ func TestPickedPathsGiveTheFullQueryPrefix(t *testing.T) {
 			t.Errorf("query %d %+v: hits %d/%v, without limit %d/%v", i, q, got.TextHits, got.Capped, want.TextHits, want.Capped)
 		}
 	}
-	for _, p := range []string{"walk find_order", "walk parts_", ", then ", "range", "ids", "scan"} {
+	for _, p := range []string{"walk find_order", "walk parts_", ", then ", "range", "ids", "scan", "mpn"} {
 		if paths[p] == 0 {
 			t.Errorf("no query took the path %q (%v)", p, paths)
 		}
@@ -204,6 +210,8 @@ func TestPickPlans(t *testing.T) {
 		{Query{Kind: MOSFET, Conds: []Cond{{Field: "vds", Op: ">=", Num: 40}}, Sort: "rdson", Limit: 20}, []string{"walk parts_mosfet_rdson"}},
 		{Query{Conds: []Cond{{Field: "type", Op: "=", Text: "zener"}}, Sort: "vf", Limit: 20}, []string{"scan"}},
 		{Query{Limit: 5}, []string{"walk find_order"}},
+		{Query{Conds: []Cond{{Field: "mpn", Op: "=", Text: "dsc40-7"}}, Limit: 5}, []string{"mpn"}},
+		{Query{Conds: []Cond{{Field: "mfr", Op: "=", Text: "Sable Semi"}}, Limit: 5}, []string{"walk find_order"}},
 	}
 	for _, c := range cases {
 		got = nil
