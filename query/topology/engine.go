@@ -47,6 +47,7 @@ type engine struct {
 	fmBuf physics.ForwardModel
 
 	zcache map[zkey]*zchoice
+	zwin   []zchoice // zenerFor's list of the Zeners of a window
 	costs  map[*catalog.Part]*partCost
 }
 
@@ -497,7 +498,7 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 	// ties go to the lower loss (or cost when ranking by cost), then the
 	// lower part number, then the first in catalog order. Costs are
 	// computed only where needed, after the parts are fetched in one batch.
-	var win []zchoice
+	win := e.zwin[:0] // reused: a window's list is dropped once chosen
 	for i := range e.cat.zeners {
 		z := &e.cat.zeners[i]
 		ch, ok := e.zenerEval(z, k)
@@ -565,6 +566,7 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 			}
 		}
 	}
+	e.zwin = win
 	e.zcache[k] = best
 	return best
 }
