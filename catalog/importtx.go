@@ -52,14 +52,12 @@ type ImportTx struct {
 	selOffers, insOffer, updOffer *sql.Stmt
 	setOfferSrc, linkMany         *sql.Stmt
 	insPart                       map[string]driver.Stmt // by which fields are present
-	insOffers                     driver.Stmt            // newOfferBatch offers
+	insOffers                     map[int]driver.Stmt    // by the number of offers
 	raw                           []driver.Stmt          // every driver statement, closed at the end
 
-	args  []any
-	nargs []driver.NamedValue
-	mask  []byte
-	prep  Preparer
-	cur   Prepared // reused by Put
+	args []any
+	prep Preparer
+	cur  Prepared // reused by Put
 }
 
 // Bulk-load tuning. Offers of new parts are inserted newOfferBatch at a
@@ -73,7 +71,7 @@ type ImportTx struct {
 // a b-tree insert into one to three small indexes per part, which stay in
 // the page cache (under 1,000 cache misses for the whole import).
 const (
-	offerCols     = 9
+	offerCols     = 8 // bound per offer of a new part; the source id is written into the statement
 	newOfferBatch = 100
 	linkBatch     = 50000
 	ctxEvery      = 1024
@@ -199,12 +197,8 @@ func (t *ImportTx) prepare() error {
 	if err != nil {
 		return err
 	}
-	if t.insOffers, err = t.rawPrepare(offerInsertSQL(newOfferBatch)); err != nil {
-		return err
-	}
+	t.insOffers = map[int]driver.Stmt{}
 	t.args = make([]any, 0, len(Fields)+4)
-	t.nargs = make([]driver.NamedValue, 0, len(Fields)+4)
-	t.mask = make([]byte, len(Fields))
 	t.insPart = map[string]driver.Stmt{}
 	t.newRange = true
 	return nil
@@ -249,32 +243,29 @@ func appendArg(args []driver.NamedValue, v any) []driver.NamedValue {
 	return append(args, driver.NamedValue{Ordinal: len(args) + 1, Value: v})
 }
 
-// insertStmt returns the INSERT for the fields present in r. Writing only
-// the present columns halves the cost of an insert (most fields of a part
-// belong to other kinds); a file uses a handful of column sets.
-func (t *ImportTx) insertStmt(r row) (driver.Stmt, error) {
-	for i, v := range r {
-		t.mask[i] = '0'
-		if v != nil {
-			t.mask[i] = '1'
-		}
-	}
-	if st := t.insPart[string(t.mask)]; st != nil {
+// insertStmt returns the INSERT for the fields present in pp (its
+// mask). Writing only the present columns halves the cost of an insert
+// (most fields of a part belong to other kinds); a file uses a handful of
+// column sets. The import time is written into the statement: constants
+// cost nothing per row, a bound value a call into SQLite.
+func (t *ImportTx) insertStmt(pp *Prepared) (driver.Stmt, error) {
+	if st := t.insPart[pp.mask]; st != nil {
 		return st, nil
 	}
 	var cols, marks strings.Builder
 	for i, f := range Fields {
-		if r[i] != nil {
+		if pp.row[i] != nil {
 			cols.WriteString(`, "` + colName(f.Name) + `"`)
 			marks.WriteString(", ?")
 		}
 	}
-	st, err := t.rawPrepare(`INSERT INTO parts(mfr_key, mpn_key` + cols.String() + `, created, updated) VALUES (?, ?` + marks.String() + `, ?, ?)
+	now := strconv.FormatInt(t.now, 10)
+	st, err := t.rawPrepare(`INSERT INTO parts(mfr_key, mpn_key` + cols.String() + `, created, updated) VALUES (?, ?` + marks.String() + `, ` + now + `, ` + now + `)
 		ON CONFLICT (mpn_key, mfr_key) DO NOTHING`)
 	if err != nil {
 		return nil, err
 	}
-	t.insPart[string(t.mask)] = st
+	t.insPart[pp.mask] = st
 	return st, nil
 }
 
@@ -303,6 +294,9 @@ type Prepared struct {
 	mk, pk string
 	row    row
 	offers []offerRow
+	mask   string              // which fields are present, one byte each: the INSERT to use
+	ins    []driver.NamedValue // the INSERT's arguments: mk, pk, the present values
+	buf    []byte
 }
 
 // Part is the part the Prepared was made from.
@@ -314,6 +308,7 @@ func (pp *Prepared) Part() *Part { return pp.p }
 // a small memo of supplier keys.
 type Preparer struct {
 	supKey map[string]string // supplier name -> NormKey
+	masks  map[string]string // field masks met so far, one string each
 }
 
 // Prepare checks p as Put does and writes its store form into dst,
@@ -331,6 +326,28 @@ func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
 	}
 	dst.p, dst.offers = p, offers
 	dst.mk, dst.pk = NormKey(p.Mfr), NormKey(p.MPN)
+	dst.buf = dst.buf[:0]
+	a := appendArg(appendArg(dst.ins[:0], dst.mk), dst.pk)
+	for _, v := range nr {
+		if v == nil {
+			dst.buf = append(dst.buf, '0')
+			continue
+		}
+		dst.buf = append(dst.buf, '1')
+		a = appendArg(a, v)
+	}
+	dst.ins = a
+	if dst.mask != string(dst.buf) {
+		m, ok := pr.masks[string(dst.buf)]
+		if !ok {
+			if pr.masks == nil {
+				pr.masks = map[string]string{}
+			}
+			m = string(dst.buf)
+			pr.masks[m] = m
+		}
+		dst.mask = m
+	}
 	return nil
 }
 
@@ -386,7 +403,7 @@ func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 		}
 	}
 	if !found {
-		o, err := t.insert(mk, pk, nr, offers)
+		o, err := t.insert(pp)
 		if err != nil || o == Added {
 			t.lastFound = false
 			return o, nil, err
@@ -469,20 +486,13 @@ func (t *ImportTx) lookup(pk, mk string) (id int64, old row, found bool, err err
 
 // insert adds the part when its identity is new and returns Added; it
 // returns Unchanged (nothing written) when the part exists.
-func (t *ImportTx) insert(mk, pk string, r row, offers []offerRow) (Outcome, error) {
-	st, err := t.insertStmt(r)
+func (t *ImportTx) insert(pp *Prepared) (Outcome, error) {
+	st, err := t.insertStmt(pp)
 	if err != nil {
 		return 0, t.fail(err)
 	}
-	a := appendArg(appendArg(t.nargs[:0], mk), pk)
-	for _, v := range r {
-		if v != nil {
-			a = appendArg(a, v)
-		}
-	}
-	a = appendArg(appendArg(a, t.now), t.now)
-	t.nargs = a
-	res, err := t.rawExec(st, a)
+	offers := pp.offers
+	res, err := t.rawExec(st, pp.ins)
 	if err != nil {
 		return 0, t.fail(err)
 	}
@@ -513,7 +523,7 @@ func (t *ImportTx) insert(mk, pk string, r row, offers []offerRow) (Outcome, err
 		if o.stock != nil {
 			stock = *o.stock
 		}
-		for _, v := range [offerCols]any{id, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br, t.srcID} {
+		for _, v := range [offerCols]any{id, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br} {
 			t.newOffers = appendArg(t.newOffers, v)
 		}
 	}
@@ -537,15 +547,17 @@ func dupOffer(before []offerRow, o *offerRow) bool {
 	return false
 }
 
-// offerInsertSQL is a multi-row INSERT of n offers (9 values each).
-func offerInsertSQL(n int) string {
+// offerInsertSQL is a multi-row INSERT of n offers of source srcID
+// (offerCols values each).
+func offerInsertSQL(n int, srcID int64) string {
 	var b strings.Builder
 	b.WriteString(`INSERT INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id) VALUES `)
+	row := "(?, ?, ?, ?, ?, ?, ?, ?, " + strconv.FormatInt(srcID, 10) + ")"
 	for i := range n {
 		if i > 0 {
 			b.WriteString(", ")
 		}
-		b.WriteString("(?, ?, ?, ?, ?, ?, ?, ?, ?)")
+		b.WriteString(row)
 	}
 	return b.String()
 }
@@ -555,23 +567,19 @@ func offerInsertSQL(n int) string {
 func (t *ImportTx) flushNewOffers() error {
 	for len(t.newOffers) > 0 {
 		n := min(len(t.newOffers)/offerCols, newOfferBatch)
-		st := t.insOffers
-		if n < newOfferBatch {
+		st := t.insOffers[n]
+		if st == nil {
 			var err error
-			if st, err = t.rawPrepare(offerInsertSQL(n)); err != nil {
+			if st, err = t.rawPrepare(offerInsertSQL(n, t.srcID)); err != nil {
 				return err
 			}
+			t.insOffers[n] = st
 		}
 		a := t.newOffers[:n*offerCols]
 		for i := range a {
 			a[i].Ordinal = i + 1
 		}
-		_, err := t.rawExec(st, a)
-		if n < newOfferBatch {
-			t.raw = t.raw[:len(t.raw)-1]
-			t.conn.Raw(func(any) error { return st.Close() })
-		}
-		if err != nil {
+		if _, err := t.rawExec(st, a); err != nil {
 			return err
 		}
 		t.newOffers = append(t.newOffers[:0], t.newOffers[n*offerCols:]...)

@@ -117,18 +117,40 @@ func ImportFile(ctx context.Context, st *catalog.Store, path string, opt Options
 	if fi.IsDir() {
 		return nil, fmt.Errorf("%s: is a directory, not a spreadsheet", path)
 	}
-	h := sha256.New()
-	if _, err := io.Copy(h, io.NewSectionReader(f, 0, fi.Size())); err != nil {
-		return nil, fmt.Errorf("%s: %w", path, unwrapPath(err))
+	// The file's SHA-256 is computed while it is imported (it is needed
+	// only by the commit): a read of the whole file less before the first
+	// row.
+	type result struct {
+		sum string
+		err error
 	}
-	return importAt(ctx, st, path, f, fi.Size(), hex.EncodeToString(h.Sum(nil)), opt)
+	done := make(chan result, 1)
+	go func() {
+		h := sha256.New()
+		_, err := io.Copy(h, io.NewSectionReader(f, 0, fi.Size()))
+		done <- result{hex.EncodeToString(h.Sum(nil)), err}
+	}()
+	var res *result
+	hash := func() (string, error) {
+		if res == nil {
+			r := <-done
+			res = &r
+		}
+		if res.err != nil {
+			return "", fmt.Errorf("%s: %w", path, unwrapPath(res.err))
+		}
+		return res.sum, nil
+	}
+	defer hash() // the file stays open until the hash is done
+	return importAt(ctx, st, path, f, fi.Size(), hash, opt)
 }
 
 // ImportData imports a spreadsheet held in memory; name gives the format
 // (by extension) and appears in messages. st may be nil as in ImportFile.
 func ImportData(ctx context.Context, st *catalog.Store, name string, data []byte, opt Options) (*Summary, error) {
 	sum := sha256.Sum256(data)
-	return importAt(ctx, st, name, bytes.NewReader(data), int64(len(data)), hex.EncodeToString(sum[:]), opt)
+	hash := func() (string, error) { return hex.EncodeToString(sum[:]), nil }
+	return importAt(ctx, st, name, bytes.NewReader(data), int64(len(data)), hash, opt)
 }
 
 func unwrapPath(err error) error {
@@ -156,7 +178,9 @@ type run struct {
 	begin func() (sink, error)
 }
 
-func importAt(ctx context.Context, st *catalog.Store, name string, r io.ReaderAt, size int64, hash string, opt Options) (*Summary, error) {
+// importAt imports the spreadsheet r of the given size; hash returns its
+// SHA-256 in hex (it may wait for it).
+func importAt(ctx context.Context, st *catalog.Store, name string, r io.ReaderAt, size int64, hash func() (string, error), opt Options) (*Summary, error) {
 	if opt.Kind != "" && !validKind(opt.Kind) {
 		return nil, fmt.Errorf("kind %q is not diode, fuse or mosfet", opt.Kind)
 	}
@@ -182,7 +206,7 @@ func importAt(ctx context.Context, st *catalog.Store, name string, r io.ReaderAt
 		sum:  &Summary{File: name, Unknown: []string{}, Rejects: []Reject{}, DryRun: opt.DryRun || st == nil},
 		prog: newProgress(opt.Progress, size)}
 	defer rn.prog.done()
-	src := catalog.Source{Label: label, File: name, SHA256: hash, Time: time.Now().UTC()}
+	src := catalog.Source{Label: label, File: name, Time: time.Now().UTC()}
 	rn.begin = func() (sink, error) {
 		if st == nil {
 			return &checkSink{seen: map[string]string{}}, nil
@@ -254,6 +278,11 @@ func importAt(ctx context.Context, st *catalog.Store, name string, r io.ReaderAt
 		}
 		return s, nil
 	}
+	sum, err := hash()
+	if err != nil {
+		return fail(err)
+	}
+	counts.SHA256 = sum
 	if err := rn.out.Commit(counts); err != nil {
 		return nil, fmt.Errorf("%s: %w", name, err)
 	}

@@ -3,9 +3,13 @@ package importers
 import (
 	"bytes"
 	"context"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
+	"os"
+	"path/filepath"
 	"runtime"
 	"strings"
 	"testing"
@@ -244,5 +248,27 @@ func TestPipeCancel(t *testing.T) {
 	}
 	if rn.sum.Read >= 20000 {
 		t.Errorf("read all %d rows despite the cancel", rn.sum.Read)
+	}
+}
+
+// The file's SHA-256, computed while the rows are imported, is the one
+// recorded for the source.
+func TestImportFileRecordsHash(t *testing.T) {
+	data := pipeCSV(700, 0, 0, false)
+	path := filepath.Join(t.TempDir(), "hash.csv")
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	st := openStore(t)
+	if _, err := ImportFile(context.Background(), st, path, Options{}); err != nil {
+		t.Fatal(err)
+	}
+	srcs, err := st.Sources(context.Background())
+	if err != nil || len(srcs) != 1 {
+		t.Fatalf("sources %+v %v", srcs, err)
+	}
+	want := sha256.Sum256(data)
+	if srcs[0].SHA256 != hex.EncodeToString(want[:]) || srcs[0].Read != 700 {
+		t.Errorf("source %+v, want sha256 %x", srcs[0], want)
 	}
 }
