@@ -227,12 +227,16 @@ func (t *ImportTx) rawPrepare(q string) (driver.Stmt, error) {
 	return st, nil
 }
 
+// rowCtx is the context of the statements run for each row. The import's
+// own context is checked between rows instead (PutPrepared): the driver
+// watches a cancellable context with a goroutine per statement.
+var rowCtx = context.Background()
+
 // rawExec runs a statement of rawPrepare. The values in args are driver
-// values already (nil, int64, float64, string). It runs without the
-// import's context: Put checks that between rows.
+// values already (nil, int64, float64, string).
 func (t *ImportTx) rawExec(st driver.Stmt, args []driver.NamedValue) (res driver.Result, err error) {
 	err = t.conn.Raw(func(any) error {
-		res, err = st.(driver.StmtExecContext).ExecContext(context.Background(), args)
+		res, err = st.(driver.StmtExecContext).ExecContext(rowCtx, args)
 		return err
 	})
 	return res, err
@@ -424,7 +428,7 @@ func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 	if len(changes) > 0 {
 		t.args = append(t.args[:0], merged...)
 		t.args = append(t.args, t.now, id)
-		if _, err := t.updPart.ExecContext(t.ctx, t.args...); err != nil {
+		if _, err := t.updPart.ExecContext(rowCtx, t.args...); err != nil {
 			return 0, nil, t.fail(err)
 		}
 		for _, c := range changes {
@@ -471,7 +475,7 @@ func (t *ImportTx) lookup(pk, mk string) (id int64, old row, found bool, err err
 		}
 	}
 	var js string
-	err = t.selPart.QueryRowContext(t.ctx, pk, mk).Scan(&id, &js)
+	err = t.selPart.QueryRowContext(rowCtx, pk, mk).Scan(&id, &js)
 	if errors.Is(err, sql.ErrNoRows) {
 		return 0, nil, false, nil
 	}
@@ -758,7 +762,7 @@ func (t *ImportTx) insertOffer(partID int64, o *offerRow) error {
 	if o.stock != nil {
 		stock = *o.stock
 	}
-	_, err := t.insOffer.ExecContext(t.ctx, partID, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br, t.srcID)
+	_, err := t.insOffer.ExecContext(rowCtx, partID, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br, t.srcID)
 	return err
 }
 
@@ -775,7 +779,7 @@ type storedOffer struct {
 // mergeOffers merges offers into the stored offers of part id.
 func (t *ImportTx) mergeOffers(id int64, offers []offerRow) ([]Change, error) {
 	var js string
-	if err := t.selOffers.QueryRowContext(t.ctx, id).Scan(&js); err != nil {
+	if err := t.selOffers.QueryRowContext(rowCtx, id).Scan(&js); err != nil {
 		return nil, err
 	}
 	v, err := parseJSON(js)
@@ -835,14 +839,14 @@ func (t *ImportTx) mergeOffers(id int64, offers []offerRow) ([]Change, error) {
 			if stock.Valid {
 				sv = stock.Int64
 			}
-			if _, err := t.updOffer.ExecContext(t.ctx, sv, moq, cur, br, t.srcID, so.id); err != nil {
+			if _, err := t.updOffer.ExecContext(rowCtx, sv, moq, cur, br, t.srcID, so.id); err != nil {
 				return nil, err
 			}
 			// a later offer in the same Put sees the merged values
 			so.stock, so.moq, so.currency, so.breaks = stock, moq, cur, br
 			changes = append(changes, ch...)
 		case !so.source.Valid || so.source.Int64 != t.srcID:
-			if _, err := t.setOfferSrc.ExecContext(t.ctx, t.srcID, so.id); err != nil {
+			if _, err := t.setOfferSrc.ExecContext(rowCtx, t.srcID, so.id); err != nil {
 				return nil, err
 			}
 		}

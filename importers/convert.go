@@ -3,7 +3,6 @@ package importers
 import (
 	"errors"
 	"fmt"
-	"slices"
 	"sort"
 	"strings"
 
@@ -28,7 +27,7 @@ type converter struct {
 	cols    []colInfo
 	numHint int // most numbers a row gave so far: the size of the next Num map
 	fedBy   map[string]int
-	fedCols map[int]bool
+	fedCols []bool // by column: it gave a value of this row
 	present map[catalog.Kind][]string
 	texts   []kindText
 }
@@ -159,7 +158,7 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 	p := &catalog.Part{Kind: kind, Type: typ, Mfr: cleanSpaces(mfr), MPN: cleanSpaces(mpn), Num: make(map[string]float64, cv.numHint)}
 	defer func() { cv.numHint = max(cv.numHint, len(p.Num)) }()
 	if cv.fedBy == nil {
-		cv.fedBy, cv.fedCols = map[string]int{}, map[int]bool{}
+		cv.fedBy, cv.fedCols = map[string]int{}, make([]bool, len(lo.cols))
 	}
 	fedBy := cv.fedBy // field -> column that gave its value
 	clear(fedBy)
@@ -249,6 +248,9 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 	fedCols := cv.fedCols
 	clear(fedCols)
 	for _, i := range fedBy {
+		if i < 0 {
+			continue
+		}
 		fedCols[i] = true
 	}
 	for i, c := range lo.cols {
@@ -626,6 +628,26 @@ func (cv *converter) kindOf(r row) (catalog.Kind, string, *rowReject) {
 	return kind, typ, nil
 }
 
+// numberReason says why value v of Number field n is impossible, or "".
+func numberReason(n string, v float64) string {
+	f, _ := catalog.FieldByName(n)
+	switch {
+	case f.Dim == units.Temperature:
+		if v < -70 || v > 300 {
+			return fmt.Sprintf("%s %s is outside -70..300 °C", n, units.Format(v, f.Dim))
+		}
+	case n == "vz_tol":
+		if v < 0 || v > 0.5 {
+			return fmt.Sprintf("vz_tol %g is outside 0..0.5 (0..50 %%)", v)
+		}
+	case v < 0:
+		return fmt.Sprintf("%s is negative (%s)", n, units.Format(v, f.Dim))
+	case v == 0 && positiveField(n):
+		return fmt.Sprintf("%s must be above zero", n)
+	}
+	return ""
+}
+
 // positiveFields must be above zero when given; everything numeric except
 // temperatures, leakage currents (a sheet may round them to 0) and the
 // Zener tolerance.
@@ -649,29 +671,16 @@ func positiveField(name string) bool {
 //   - a Zener has V_Z; a TVS has V_BR ≥ V_RWM and V_C ≥ V_BR
 //   - a fuse's breaking capacity is not below its rated current
 func validatePart(p *catalog.Part) (field, reason string) {
-	var buf [64]string
-	names := buf[:0]
-	for n := range p.Num {
-		names = append(names, n)
-	}
-	slices.Sort(names)
-	for _, n := range names {
-		v := p.Num[n]
-		f, _ := catalog.FieldByName(n)
-		switch {
-		case f.Dim == units.Temperature:
-			if v < -70 || v > 300 {
-				return n, fmt.Sprintf("%s %s is outside -70..300 °C", n, units.Format(v, f.Dim))
-			}
-		case n == "vz_tol":
-			if v < 0 || v > 0.5 {
-				return n, fmt.Sprintf("vz_tol %g is outside 0..0.5 (0..50 %%)", v)
-			}
-		case v < 0:
-			return n, fmt.Sprintf("%s is negative (%s)", n, units.Format(v, f.Dim))
-		case v == 0 && positiveField(n):
-			return n, fmt.Sprintf("%s must be above zero", n)
+	// the first bad number in name order is reported: the smallest
+	// failing name, whatever the map's order
+	bad := ""
+	for n, v := range p.Num {
+		if (bad == "" || n < bad) && numberReason(n, v) != "" {
+			bad = n
 		}
+	}
+	if bad != "" {
+		return bad, numberReason(bad, p.Num[bad])
 	}
 	get := p.Get
 	fmtv := func(name string, v float64) string {

@@ -31,6 +31,9 @@ var maxAbsentLen = func() int {
 // isAbsent reports a cell that means "no value".
 func isAbsent(s string) bool {
 	t := strings.TrimSpace(s)
+	if t == "" {
+		return true
+	}
 	if len(t) > maxAbsentLen {
 		// lower-casing changes the length of no absent word
 		return false
