@@ -21,10 +21,11 @@ import (
 // The transaction runs on a connection of its own. The statements run for
 // every row (the insert of a new part, the batched insert of new offers)
 // go to that connection's driver directly, with values that are already
-// driver values: database/sql's per-argument conversion and its
-// per-statement context watch cost about as much as the insert itself. The
-// import's context is checked between rows instead (every ctxEvery Puts)
-// and by the statements that run once per import.
+// driver values: database/sql's per-argument conversion took a fifth of
+// the insert's time in a measurement at 200,000 parts. No statement run
+// per row watches the import's context (the driver starts a goroutine per
+// statement for a cancellable one); it is checked between rows instead
+// (every ctxEvery Puts) and by the statements that run once per import.
 type ImportTx struct {
 	s       *Store
 	ctx     context.Context
@@ -64,12 +65,15 @@ type ImportTx struct {
 // time through one multi-row statement.
 //
 // The secondary indexes of parts stay in place during an import. Dropping
-// them for a bulk load and building them again before the commit was
-// measured slower at 100,000 and 1,000,000 new parts: each CREATE INDEX
-// scans the whole new table back out of the WAL (8 partial indexes, some
-// 700,000 page reads and 8 s at 1,000,000 parts), while keeping them costs
-// a b-tree insert into one to three small indexes per part, which stay in
-// the page cache (under 1,000 cache misses for the whole import).
+// them for a bulk load and building them again before the commit cost
+// more on the synthetic catalog of the scale benchmark (1,000,000 new
+// parts: 45 s of CPU on the writing side against 41 s), because each
+// CREATE INDEX scans the whole new table back out of the WAL (8 partial
+// indexes, some 700,000 page reads, 9.5 s), while keeping them costs a
+// b-tree insert into one to three small indexes per part, which stay in
+// the page cache (under 1,000 cache misses for the whole import). With
+// narrower rows the rebuild is cheaper (500,000 test parts of genParts:
+// 16 to 19 s against 21 to 22 s), so the balance depends on the rows.
 const (
 	offerCols     = 8 // bound per offer of a new part; the source id is written into the statement
 	newOfferBatch = 100
@@ -133,8 +137,9 @@ func (s *Store) beginErr(err error) error {
 }
 
 // release closes the driver statements and gives the connection back to
-// the pool with its pragmas restored; a connection that cannot be restored
-// is discarded.
+// the pool with its pragmas restored. A connection that cannot be restored
+// is discarded, and so is one still inside a transaction (a COMMIT that
+// failed may leave it open), where the pragma would do nothing.
 func (t *ImportTx) release() {
 	if t.conn == nil {
 		return
@@ -149,11 +154,19 @@ func (t *ImportTx) release() {
 		})
 		t.raw = nil
 	}
+	ok := true
 	for _, q := range t.restore {
 		if _, err := t.conn.ExecContext(bg, q); err != nil {
-			t.conn.Raw(func(any) error { return driver.ErrBadConn })
+			ok = false
 			break
 		}
+	}
+	var fk int
+	if ok && (t.conn.QueryRowContext(bg, `PRAGMA foreign_keys`).Scan(&fk) != nil || fk != 1) {
+		ok = false
+	}
+	if !ok {
+		t.conn.Raw(func(any) error { return driver.ErrBadConn })
 	}
 	t.conn.Close()
 	t.conn = nil
@@ -319,7 +332,8 @@ type Preparer struct {
 // reusing dst's buffers. A part the catalog refuses gives an error
 // matching ErrInvalidPart (see Put).
 func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
-	nr, err := partRowInto(p, dst.row)
+	mk, pk := normKey(p.Mfr), normKey(p.MPN)
+	nr, err := partRowInto(p, dst.row, mk, pk)
 	if err != nil {
 		return invalidPart{err}
 	}
@@ -329,7 +343,7 @@ func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
 		return invalidPart{err}
 	}
 	dst.p, dst.offers = p, offers
-	dst.mk, dst.pk = NormKey(p.Mfr), NormKey(p.MPN)
+	dst.mk, dst.pk = mk, pk
 	dst.buf = dst.buf[:0]
 	a := appendArg(appendArg(dst.ins[:0], dst.mk), dst.pk)
 	for _, v := range nr {
@@ -661,7 +675,7 @@ func (pr *Preparer) normOffers(p *Part, out []offerRow) ([]offerRow, error) {
 			moq: o.MOQ, currency: strings.ToUpper(strings.TrimSpace(o.Currency))}
 		key, ok := pr.supKey[r.supplier]
 		if !ok {
-			key = NormKey(r.supplier)
+			key = normKey(r.supplier)
 			if len(pr.supKey) < 1000 {
 				pr.supKey[r.supplier] = key
 			}

@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"partsieve/catalog/units"
 )
@@ -81,14 +82,20 @@ func canonEnum(f *Field, v string) (string, bool) {
 
 // partRowInto validates p and returns its row. Text is trimmed; Enum values
 // take their dictionary spelling; the type must belong to the kind; Number
-// fields must exist, be finite and apply to the kind.
+// fields must exist, be finite and apply to the kind. mk and pk are
+// NormKey of p.Mfr and p.MPN.
 // It writes into r when r has room (the import reuses one row).
-func partRowInto(p *Part, r row) (row, error) {
+//
+// The numbers are taken from p.Num directly (a part fills a few of the
+// dictionary's many Number fields); when one of them is wrong, the fields
+// are checked again in dictionary order, so that the error reported is
+// always the first one in that order.
+func partRowInto(p *Part, r row, mk, pk string) (row, error) {
 	who := func() string { return strings.TrimSpace(p.Mfr) + " " + strings.TrimSpace(p.MPN) }
-	if NormKey(p.Mfr) == "" {
+	if mk == "" {
 		return nil, fmt.Errorf("part %q: manufacturer is empty", strings.TrimSpace(p.MPN))
 	}
-	if NormKey(p.MPN) == "" {
+	if pk == "" {
 		return nil, fmt.Errorf("part of %q: part number is empty", strings.TrimSpace(p.Mfr))
 	}
 	kindF := &Fields[fieldIndex["kind"]]
@@ -102,56 +109,139 @@ func partRowInto(p *Part, r row) (row, error) {
 	}
 	r = r[:len(Fields)]
 	clear(r)
-	for i := range Fields {
-		f := &Fields[i]
-		switch f.Type {
-		case Number:
-			v, ok := p.Num[f.Name]
-			if !ok {
-				continue
-			}
-			if math.IsNaN(v) || math.IsInf(v, 0) {
-				return nil, fmt.Errorf("part %s: %s is not a finite number", who(), f.Name)
-			}
-			if !f.AppliesTo(kind) {
-				return nil, fmt.Errorf("part %s: field %s does not apply to a %s", who(), f.Name, kind)
-			}
-			r[i] = v
-		case Bool:
-			if b := boolOf(p, f.Name); b != nil {
-				r[i] = b2i(*b)
-			}
-		case Text, Enum:
-			v := strings.TrimSpace(p.TextField(f.Name))
-			if v == "" {
-				continue
-			}
-			if f.Type == Enum {
-				c, ok := canonEnum(f, v)
-				if !ok {
-					return nil, fmt.Errorf("part %s: %s %q is not one of %s", who(), f.Name, v, strings.Join(f.Enum, ", "))
-				}
-				v = c
-			}
-			if !f.AppliesTo(kind) {
-				return nil, fmt.Errorf("part %s: field %s does not apply to a %s", who(), f.Name, kind)
-			}
-			r[i] = v
+	for name, v := range p.Num {
+		i, ok := fieldIndex[name]
+		if !ok || Fields[i].Type != Number || math.IsNaN(v) || math.IsInf(v, 0) || !Fields[i].AppliesTo(kind) {
+			clear(r)
+			return partRowOrdered(p, r, kind, who)
+		}
+		r[i] = v
+	}
+	for _, i := range nonNumberFields {
+		v, err := fieldValue(p, &Fields[i], kind, who)
+		if err != nil {
+			return nil, err
+		}
+		r[i] = v
+	}
+	return r, checkType(r, kind, who)
+}
+
+// nonNumberFields are the indexes of the dictionary's Text, Enum and Bool
+// fields.
+var nonNumberFields = func() []int {
+	var out []int
+	for i, f := range Fields {
+		if f.Type != Number {
+			out = append(out, i)
 		}
 	}
-	if t, ok := r[fieldIndex["type"]].(string); ok {
-		if _, ok := canonEnum(&Field{Enum: Types[kind]}, t); !ok {
-			return nil, fmt.Errorf("part %s: type %q is not a %s type (one of %s)", who(), t, kind, strings.Join(Types[kind], ", "))
+	return out
+}()
+
+// partRowOrdered is partRowInto checking every field in dictionary order.
+func partRowOrdered(p *Part, r row, kind Kind, who func() string) (row, error) {
+	for i := range Fields {
+		v, err := fieldValue(p, &Fields[i], kind, who)
+		if err != nil {
+			return nil, err
 		}
+		r[i] = v
+	}
+	if err := checkType(r, kind, who); err != nil {
+		return nil, err
 	}
 	if n := numCount(r); n != len(p.Num) {
+		bad, found := "", false // the first in name order, whatever the map's order
 		for name := range p.Num {
-			if i, ok := fieldIndex[name]; !ok || Fields[i].Type != Number {
-				return nil, fmt.Errorf("part %s: %q is not a numeric field", who(), name)
+			if i, ok := fieldIndex[name]; (!ok || Fields[i].Type != Number) && (!found || name < bad) {
+				bad, found = name, true
 			}
+		}
+		if found {
+			return nil, fmt.Errorf("part %s: %q is not a numeric field", who(), bad)
 		}
 	}
 	return r, nil
+}
+
+// fieldValue is the row value of field f of p (nil when absent), checked.
+func fieldValue(p *Part, f *Field, kind Kind, who func() string) (any, error) {
+	switch f.Type {
+	case Number:
+		v, ok := p.Num[f.Name]
+		if !ok {
+			return nil, nil
+		}
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return nil, fmt.Errorf("part %s: %s is not a finite number", who(), f.Name)
+		}
+		if !f.AppliesTo(kind) {
+			return nil, fmt.Errorf("part %s: field %s does not apply to a %s", who(), f.Name, kind)
+		}
+		return v, nil
+	case Bool:
+		if b := boolOf(p, f.Name); b != nil {
+			return b2i(*b), nil
+		}
+	case Text, Enum:
+		v := strings.TrimSpace(p.TextField(f.Name))
+		if v == "" {
+			return nil, nil
+		}
+		if f.Type == Enum {
+			c, ok := canonEnum(f, v)
+			if !ok {
+				return nil, fmt.Errorf("part %s: %s %q is not one of %s", who(), f.Name, v, strings.Join(f.Enum, ", "))
+			}
+			v = c
+		}
+		if !f.AppliesTo(kind) {
+			return nil, fmt.Errorf("part %s: field %s does not apply to a %s", who(), f.Name, kind)
+		}
+		return v, nil
+	}
+	return nil, nil
+}
+
+// checkType checks that the type in r belongs to kind.
+func checkType(r row, kind Kind, who func() string) error {
+	if t, ok := r[fieldIndex["type"]].(string); ok {
+		if _, ok := canonEnum(&Field{Enum: Types[kind]}, t); !ok {
+			return fmt.Errorf("part %s: type %q is not a %s type (one of %s)", who(), t, kind, strings.Join(Types[kind], ", "))
+		}
+	}
+	return nil
+}
+
+// normKey is NormKey, without its rune-by-rune work for the usual ASCII
+// text: ASCII white space, '-' and '_' dropped, letters upper-cased.
+func normKey(s string) string {
+	change := false
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		switch {
+		case c >= utf8.RuneSelf:
+			return NormKey(s)
+		case c == ' ' || c == '-' || c == '_' || c >= '\t' && c <= '\r' || c >= 'a' && c <= 'z':
+			change = true
+		}
+	}
+	if !change {
+		return s
+	}
+	b := make([]byte, 0, len(s))
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		switch {
+		case c == ' ' || c == '-' || c == '_' || c >= '\t' && c <= '\r':
+		case c >= 'a' && c <= 'z':
+			b = append(b, c-'a'+'A')
+		default:
+			b = append(b, c)
+		}
+	}
+	return string(b)
 }
 
 // numCount counts the Number values of r.

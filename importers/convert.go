@@ -673,13 +673,13 @@ func positiveField(name string) bool {
 func validatePart(p *catalog.Part) (field, reason string) {
 	// the first bad number in name order is reported: the smallest
 	// failing name, whatever the map's order
-	bad := ""
+	bad, found := "", false
 	for n, v := range p.Num {
-		if (bad == "" || n < bad) && numberReason(n, v) != "" {
-			bad = n
+		if (!found || n < bad) && numberReason(n, v) != "" {
+			bad, found = n, true
 		}
 	}
-	if bad != "" {
+	if found {
 		return bad, numberReason(bad, p.Num[bad])
 	}
 	get := p.Get
