@@ -316,13 +316,10 @@ type Prepared struct {
 	buf    []byte
 }
 
-// Part is the part the Prepared was made from.
-func (pp *Prepared) Part() *Part { return pp.p }
-
 // A Preparer checks parts for an import ahead of the writes, so that an
 // importer can do that work on another goroutine than the one writing
 // (ImportTx.PutPrepared). A Preparer is used from one goroutine; it keeps
-// a small memo of supplier keys.
+// a small memo of supplier keys and field sets.
 type Preparer struct {
 	supKey map[string]string // supplier name -> NormKey
 	masks  map[string]string // field masks met so far, one string each
@@ -397,7 +394,8 @@ func (t *ImportTx) Put(p *Part) (Outcome, []Change, error) {
 }
 
 // PutPrepared is Put of a part checked by a Preparer (any Preparer, on any
-// goroutine); pp may be reused once it returns.
+// goroutine). The part must not change between Prepare and PutPrepared;
+// pp may be reused once PutPrepared returns.
 func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 	if t.done {
 		return 0, nil, errFinished
