@@ -3,7 +3,6 @@ package catalog
 import (
 	"context"
 	"database/sql"
-	"fmt"
 	"sort"
 	"strings"
 	"testing"
@@ -14,35 +13,8 @@ import (
 // column, offers, provenance and the source records.
 func dumpCatalog(t *testing.T, s *Store) []string {
 	t.Helper()
-	ctx := context.Background()
 	var out []string
-	q := func(label, query string) {
-		rows, err := s.db.QueryContext(ctx, query)
-		if err != nil {
-			t.Fatalf("%s: %v", label, err)
-		}
-		defer rows.Close()
-		cols, _ := rows.Columns()
-		for rows.Next() {
-			vals := make([]any, len(cols))
-			ptrs := make([]any, len(cols))
-			for i := range vals {
-				ptrs[i] = &vals[i]
-			}
-			if err := rows.Scan(ptrs...); err != nil {
-				t.Fatal(err)
-			}
-			var b strings.Builder
-			b.WriteString(label)
-			for i, c := range cols {
-				fmt.Fprintf(&b, " %s=%v", c, vals[i])
-			}
-			out = append(out, b.String())
-		}
-		if err := rows.Err(); err != nil {
-			t.Fatal(err)
-		}
-	}
+	q := func(label, query string) { out = append(out, rowLines(t, s, label, query)...) }
 	q("part", `SELECT id, mfr_key, mpn_key, `+fieldColumns+` FROM parts`)
 	q("offer", `SELECT id, part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id FROM offers`)
 	q("link", `SELECT part_id, source_id FROM part_sources`)

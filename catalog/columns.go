@@ -331,16 +331,7 @@ func (s *Store) refreshColumnsAfterChange(ctx context.Context) {
 
 // cleanColumnLeftovers removes temporary column files of processes that
 // are gone.
-func cleanColumnLeftovers(path string) {
-	tmps, _ := filepath.Glob(path + ".tmp-*")
-	for _, t := range tmps {
-		rest := strings.TrimPrefix(t, path+".tmp-")
-		pid, err := strconv.Atoi(strings.SplitN(rest, "-", 2)[0])
-		if err != nil || !processAlive(pid) {
-			os.Remove(t)
-		}
-	}
-}
+func cleanColumnLeftovers(path string) { removeDeadTemps(path + ".tmp-") }
 
 // spill is one set's rows while the file is written (row by row: id,
 // ord, mask of the kind's fields present, those values, then mfr, mpn,
@@ -436,8 +427,7 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 			}
 		}
 		for _, t := range [4]string{mfr.String, mpn.String, fstd.String, rer.String} {
-			buf = binary.AppendUvarint(buf, uint64(len(t)))
-			buf = append(buf, t...)
+			buf = appendString(buf, t)
 		}
 		if _, err := sp.w.Write(buf); err != nil {
 			return "", err

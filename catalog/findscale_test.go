@@ -91,16 +91,7 @@ func BenchmarkFindScale(b *testing.B) {
 func BenchmarkBleveScale(b *testing.B) {
 	s := benchStore(b)
 	ctx := context.Background()
-	gen, err := generation(ctx, s.db)
-	if err != nil {
-		b.Fatal(err)
-	}
-	s.mu.Lock()
-	ix, err := s.currentIndexLocked(ctx, gen)
-	s.mu.Unlock()
-	if err != nil {
-		b.Fatal(err)
-	}
+	ix := benchIndex(b, s)
 	for _, text := range []string{"rectifier", "shotky"} {
 		for _, size := range []int{50, 200, 3200, TextCap} {
 			for _, scored := range []bool{true, false} {
@@ -135,16 +126,7 @@ func BenchmarkBleveScale(b *testing.B) {
 func BenchmarkBleveShapes(b *testing.B) {
 	s := benchStore(b)
 	ctx := context.Background()
-	gen, err := generation(ctx, s.db)
-	if err != nil {
-		b.Fatal(err)
-	}
-	s.mu.Lock()
-	ix, err := s.currentIndexLocked(ctx, gen)
-	s.mu.Unlock()
-	if err != nil {
-		b.Fatal(err)
-	}
+	ix := benchIndex(b, s)
 	for _, text := range []string{"rectifier", "shotky"} {
 		fz := bleve.NewFuzzyQuery(text)
 		fz.SetField("text")
@@ -203,4 +185,21 @@ func TestFindScalePaths(t *testing.T) {
 		_, err := s.Search(context.Background(), q)
 		t.Logf("%s: %v %v", name, time.Since(t0), err)
 	}
+}
+
+// benchIndex returns the store's text index, brought up to date.
+func benchIndex(b *testing.B, s *Store) bleve.Index {
+	b.Helper()
+	ctx := context.Background()
+	gen, err := generation(ctx, s.db)
+	if err != nil {
+		b.Fatal(err)
+	}
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	ix, err := s.currentIndexLocked(ctx, gen)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return ix
 }

@@ -88,34 +88,45 @@ func gen(t testing.TB, s *Store) int64 {
 	return g
 }
 
+// rowLines runs query and returns one line per row: label, then
+// column=value for each column.
+func rowLines(t testing.TB, s *Store, label, query string) []string {
+	t.Helper()
+	rows, err := s.db.QueryContext(context.Background(), query)
+	if err != nil {
+		t.Fatalf("%s: %v", label, err)
+	}
+	defer rows.Close()
+	cols, _ := rows.Columns()
+	var out []string
+	for rows.Next() {
+		vals := make([]any, len(cols))
+		ptrs := make([]any, len(cols))
+		for i := range vals {
+			ptrs[i] = &vals[i]
+		}
+		if err := rows.Scan(ptrs...); err != nil {
+			t.Fatal(err)
+		}
+		var b strings.Builder
+		b.WriteString(label)
+		for i, v := range vals {
+			fmt.Fprintf(&b, " %s=%v", cols[i], v)
+		}
+		out = append(out, b.String())
+	}
+	if err := rows.Err(); err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
+
 // dump writes every table of the catalog as sorted text lines.
 func dump(t testing.TB, s *Store) string {
 	t.Helper()
-	ctx := context.Background()
 	var lines []string
 	for _, table := range []string{"meta", "sources", "parts", "offers", "part_sources"} {
-		rows, err := s.db.QueryContext(ctx, "SELECT * FROM "+table)
-		if err != nil {
-			t.Fatal(err)
-		}
-		cols, _ := rows.Columns()
-		for rows.Next() {
-			vals := make([]any, len(cols))
-			ptrs := make([]any, len(cols))
-			for i := range vals {
-				ptrs[i] = &vals[i]
-			}
-			if err := rows.Scan(ptrs...); err != nil {
-				t.Fatal(err)
-			}
-			var b strings.Builder
-			b.WriteString(table)
-			for i, v := range vals {
-				fmt.Fprintf(&b, " %s=%v", cols[i], v)
-			}
-			lines = append(lines, b.String())
-		}
-		rows.Close()
+		lines = append(lines, rowLines(t, s, table, "SELECT * FROM "+table)...)
 	}
 	sort.Strings(lines)
 	return strings.Join(lines, "\n")

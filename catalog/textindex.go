@@ -259,9 +259,16 @@ func cleanLeftovers(dir string) {
 	for _, o := range olds {
 		os.RemoveAll(o)
 	}
-	tmps, _ := filepath.Glob(dir + ".tmp-*")
+	removeDeadTemps(dir + ".tmp-")
+}
+
+// removeDeadTemps removes the files and directories named prefix + PID +
+// "-…" whose process is gone (or whose name holds no PID): what a
+// killed rebuild of the text index or the column file leaves.
+func removeDeadTemps(prefix string) {
+	tmps, _ := filepath.Glob(prefix + "*")
 	for _, t := range tmps {
-		rest := strings.TrimPrefix(t, dir+".tmp-")
+		rest := strings.TrimPrefix(t, prefix)
 		pid, err := strconv.Atoi(strings.SplitN(rest, "-", 2)[0])
 		if err != nil || !processAlive(pid) {
 			os.RemoveAll(t)

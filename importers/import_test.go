@@ -563,17 +563,7 @@ func TestStoreRefusals(t *testing.T) {
 		t.Fatal(err)
 	}
 	run := func(out sink) (*Summary, error) {
-		rn := &run{ctx: context.Background(), name: "d.csv", label: "d.csv", cr: &countingReaderAt{r: bytes.NewReader(data)},
-			sum: &Summary{Unknown: []string{}, Rejects: []Reject{}}, begin: func() (sink, error) { return out, nil }}
-		book, err := OpenBook("d.csv", bytes.NewReader(data), int64(len(data)))
-		if err != nil {
-			t.Fatal(err)
-		}
-		tbl, err := book.Table("")
-		if err != nil {
-			t.Fatal(err)
-		}
-		_, err = rn.sheet("", tbl)
+		rn, err := sheetRun(t, context.Background(), "d.csv", data, out)
 		return rn.sum, err
 	}
 	s, err := run(refusingSink{&checkSink{}})

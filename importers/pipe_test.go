@@ -113,17 +113,8 @@ func TestPreparedMatchesPut(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	rn := &run{ctx: ctx, name: "pipe.csv", label: "pipe.csv", cr: &countingReaderAt{r: bytes.NewReader(data)},
-		sum: &Summary{Unknown: []string{}, Rejects: []Reject{}}, begin: func() (sink, error) { return plainSink{tx}, nil }}
-	book, err := OpenBook("pipe.csv", bytes.NewReader(data), int64(len(data)))
+	rn, err := sheetRun(t, ctx, "pipe.csv", data, plainSink{tx})
 	if err != nil {
-		t.Fatal(err)
-	}
-	tbl, err := book.Table("")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, err := rn.sheet("", tbl); err != nil {
 		t.Fatal(err)
 	}
 	if err := tx.Commit(catalog.Source{}); err != nil {
@@ -186,17 +177,7 @@ func TestPipeStopsReaderOnWriteFailure(t *testing.T) {
 	data := pipeCSV(n, 0, 0, false)
 	before := runtime.NumGoroutine()
 	sk := &failAfter{checkSink: checkSink{seen: map[string]string{}}, n: 300}
-	rn := &run{ctx: context.Background(), name: "p.csv", label: "p.csv", cr: &countingReaderAt{r: bytes.NewReader(data)},
-		sum: &Summary{Unknown: []string{}, Rejects: []Reject{}}, begin: func() (sink, error) { return sk, nil }}
-	book, err := OpenBook("p.csv", bytes.NewReader(data), int64(len(data)))
-	if err != nil {
-		t.Fatal(err)
-	}
-	tbl, err := book.Table("")
-	if err != nil {
-		t.Fatal(err)
-	}
-	_, err = rn.sheet("", tbl)
+	rn, err := sheetRun(t, context.Background(), "p.csv", data, sk)
 	if err == nil || !strings.Contains(err.Error(), "p.csv, row 301: catalog c.db: disk I/O error") {
 		t.Errorf("error %v", err)
 	}
@@ -232,17 +213,7 @@ func TestPipeCancel(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
 	sk := &cancelAfter{checkSink: checkSink{seen: map[string]string{}}, n: 100, cancel: cancel}
-	rn := &run{ctx: ctx, name: "p.csv", label: "p.csv", cr: &countingReaderAt{r: bytes.NewReader(data)},
-		sum: &Summary{Unknown: []string{}, Rejects: []Reject{}}, begin: func() (sink, error) { return sk, nil }}
-	book, err := OpenBook("p.csv", bytes.NewReader(data), int64(len(data)))
-	if err != nil {
-		t.Fatal(err)
-	}
-	tbl, err := book.Table("")
-	if err != nil {
-		t.Fatal(err)
-	}
-	_, err = rn.sheet("", tbl)
+	rn, err := sheetRun(t, ctx, "p.csv", data, sk)
 	if !errors.Is(err, context.Canceled) || !strings.Contains(err.Error(), "p.csv: import stopped") {
 		t.Errorf("error %v", err)
 	}
@@ -271,4 +242,23 @@ func TestImportFileRecordsHash(t *testing.T) {
 	if srcs[0].SHA256 != hex.EncodeToString(want[:]) || srcs[0].Read != 700 {
 		t.Errorf("source %+v, want sha256 %x", srcs[0], want)
 	}
+}
+
+// sheetRun imports the first sheet of the CSV data named name into out
+// through the import's run (reader and writer goroutines), as ImportData
+// does, and returns the run with its summary and the sheet's error.
+func sheetRun(t *testing.T, ctx context.Context, name string, data []byte, out sink) (*run, error) {
+	t.Helper()
+	rn := &run{ctx: ctx, name: name, label: name, cr: &countingReaderAt{r: bytes.NewReader(data)},
+		sum: &Summary{Unknown: []string{}, Rejects: []Reject{}}, begin: func() (sink, error) { return out, nil }}
+	book, err := OpenBook(name, bytes.NewReader(data), int64(len(data)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	tbl, err := book.Table("")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = rn.sheet("", tbl)
+	return rn, err
 }

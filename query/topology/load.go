@@ -113,14 +113,7 @@ func load(ctx context.Context, src Source, s *spec.Spec, opt Options) (*loaded, 
 	}
 	out := &loaded{pre: map[Topology][]Elimination{}}
 	seen := map[string]int{}
-	for _, pf := range prefilters(s) {
-		want := false
-		for _, t := range pf.topos {
-			want = want || opt.wants(t)
-		}
-		if !want {
-			continue
-		}
+	for _, pf := range wantedPrefilters(s, opt) {
 		parts, err := src.Find(ctx, catalog.Query{Kind: pf.kind, Conds: pf.conds, Offers: true})
 		if err != nil {
 			return nil, fmt.Errorf("pick: reading %s parts: %w", pf.role, err)
@@ -156,15 +149,8 @@ func load(ctx context.Context, src Source, s *spec.Spec, opt Options) (*loaded, 
 	}
 	// parts of a role's kind and types that no query returned failed the
 	// role's own pre-filter (every loaded part is evaluated in every role)
-	for _, pf := range prefilters(s) {
+	for _, pf := range wantedPrefilters(s, opt) {
 		if pf.label == "" {
-			continue
-		}
-		want := false
-		for _, t := range pf.topos {
-			want = want || opt.wants(t)
-		}
-		if !want {
 			continue
 		}
 		total, have := 0, 0
@@ -320,15 +306,7 @@ func (pf *prefilter) numConds(cs *catalog.ColumnSet) ([]numCond, error) {
 // result equals load's (same parts, same eliminations).
 func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Options) (c *Catalog, pre map[Topology][]Elimination, restoreGC func(), err error) {
 	restoreGC = func() {}
-	var pfs []prefilter
-	for _, pf := range prefilters(s) {
-		for _, t := range pf.topos {
-			if opt.wants(t) {
-				pfs = append(pfs, pf)
-				break
-			}
-		}
-	}
+	pfs := wantedPrefilters(s, opt)
 	cols, err := view.Columns(ctx, func(k catalog.Kind, typ string) bool {
 		for i := range pfs {
 			if pfs[i].setMatch(k, typ) {
@@ -342,7 +320,7 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 	}
 	defer cols.Close() // the records below copy what they need
 	// From here the pick allocates its working set (records, then the
-	// evaluation's arrays; about 300 MB at a million parts) in one go and
+	// evaluation's arrays; about 300 MB at a million parts, measured) in one go and
 	// drops it at the end: collections while it grows would only trace it
 	// again and again (a third of the CPU time of a pick at a million
 	// parts). The collector is off until Pick returns unless the process
@@ -358,7 +336,6 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 	// first pass: which rows some pre-filter keeps, and the counts
 	keep := make([][]int32, len(cols.Sets))
 	total, have := make([]int, len(pfs)), make([]int, len(pfs))
-	n := 0
 	for si, cs := range cols.Sets {
 		var conds [][]numCond
 		counted := make([]bool, len(pfs))
@@ -391,7 +368,6 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 				}
 			}
 		}
-		n += len(keep[si])
 		for k := range pfs {
 			if counted[k] {
 				have[k] += len(keep[si])
@@ -530,7 +506,8 @@ func roleOf(cs *catalog.ColumnSet) int {
 var errColumns = errors.New("catalog columns unavailable")
 
 // pickMemoryLimit is the memory (bytes) past which the collector runs
-// during a pick (see pickColumns).
+// during a pick (see loadColumns): a tool choice, about four times the
+// working set of a pick at a million parts.
 const pickMemoryLimit = 1536 << 20
 
 // pickColumns is Pick on a catalog's column view.
@@ -562,14 +539,19 @@ func pickColumns(ctx context.Context, v viewer, s *spec.Spec, opt Options) (*Res
 // s (kind and hard-limit conditions per role): for comparisons such as
 // the scale benchmark's plain scan.
 func PrefilterQueries(s *spec.Spec, opt Options) []catalog.Query {
-	opt = opt.withDefaults()
 	var out []catalog.Query
+	for _, pf := range wantedPrefilters(s, opt.withDefaults()) {
+		out = append(out, catalog.Query{Kind: pf.kind, Conds: append([]catalog.Cond(nil), pf.conds...)})
+	}
+	return out
+}
+
+// wantedPrefilters returns the pre-filters of the topologies opt wants.
+func wantedPrefilters(s *spec.Spec, opt Options) []prefilter {
+	var out []prefilter
 	for _, pf := range prefilters(s) {
-		for _, t := range pf.topos {
-			if opt.wants(t) {
-				out = append(out, catalog.Query{Kind: pf.kind, Conds: append([]catalog.Cond(nil), pf.conds...)})
-				break
-			}
+		if slices.ContainsFunc(pf.topos, opt.wants) {
+			out = append(out, pf)
 		}
 	}
 	return out
