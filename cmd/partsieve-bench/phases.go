@@ -41,6 +41,8 @@ func runPhase(name, dir string, rows, xrows int, seed uint64, reps int) (results
 		return phaseImport(ctx, dir)
 	case "sqlite3":
 		return phaseSQLite3(dir)
+	case "sqlite3-keyed":
+		return phaseSQLite3Keyed(dir)
 	case "bleve":
 		return phaseBleve(dir)
 	case "xlsx":
@@ -146,25 +148,20 @@ func shellDB(dir string) string { return filepath.Join(dir, "shell.db") }
 
 func quoteIdent(s string) string { return `"` + strings.ReplaceAll(s, `"`, `""`) + `"` }
 
-// phaseSQLite3 runs the C shell's .import of the CSV into a typed table
-// (REAL for number fields, INTEGER for stock and moq, TEXT otherwise),
-// with the pragmas of LIBRARIES.md, then the NULLIF fix-up of empty cells
-// (timed apart) and the indexes the find comparison uses (untimed).
-func phaseSQLite3(dir string) (results, error) {
-	bin, err := exec.LookPath("sqlite3")
+// shellSchema reads the CSV's header and returns its column names, the
+// column definitions of the shell's typed table (REAL for number fields,
+// stock, moq and price breaks, TEXT otherwise) and the NULLIF assignments
+// that turn the empty cells of the REAL columns into NULL.
+func shellSchema(path string) (header, cols, fix []string, err error) {
+	f, err := os.Open(path)
 	if err != nil {
-		return results{}, nil // reported as absent
+		return nil, nil, nil, err
 	}
-	f, err := os.Open(csvPath(dir))
-	if err != nil {
-		return nil, err
-	}
-	header, err := csv.NewReader(bufio.NewReader(f)).Read()
+	header, err = csv.NewReader(bufio.NewReader(f)).Read()
 	f.Close()
 	if err != nil {
-		return nil, err
+		return nil, nil, nil, fmt.Errorf("%s: header: %w", path, err)
 	}
-	var cols, fix []string
 	for _, h := range header {
 		typ := "TEXT"
 		if fl, ok := catalog.FieldByName(h); ok && fl.Type == catalog.Number && h != "kind" {
@@ -177,37 +174,230 @@ func phaseSQLite3(dir string) (results, error) {
 			fix = append(fix, quoteIdent(h)+" = NULLIF("+quoteIdent(h)+", '')")
 		}
 	}
+	return header, cols, fix, nil
+}
+
+// shellRun runs the sqlite3 shell at bin on database db with the pragmas
+// of LIBRARIES.md and args; it returns the wall time, the shell's peak
+// resident memory (MB), its standard output and its standard error (where
+// .import reports a row it refused, and goes on).
+func shellRun(bin, db string, args ...string) (d time.Duration, rss float64, stdout, stderr []byte, err error) {
+	cmd := exec.Command(bin, append([]string{db, "-cmd", "PRAGMA journal_mode=WAL", "-cmd", "PRAGMA synchronous=NORMAL", "-cmd", "PRAGMA cache_size=-65536"}, args...)...)
+	var out, errOut bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errOut
+	t0 := time.Now()
+	err = cmd.Run()
+	d = time.Since(t0)
+	if err != nil {
+		return 0, 0, nil, nil, fmt.Errorf("sqlite3 %v: %v: %s%s", args, err, out.Bytes(), errOut.Bytes())
+	}
+	if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
+		rss = float64(ru.Maxrss) / 1024
+	}
+	return d, rss, out.Bytes(), errOut.Bytes(), nil
+}
+
+// firstLines is the first n lines of s, "..." marking a cut.
+func firstLines(s string, n int) string {
+	ls := strings.SplitN(strings.TrimSpace(s), "\n", n+1)
+	if len(ls) > n {
+		ls[n] = "..."
+	}
+	return strings.Join(ls, "\n")
+}
+
+// phaseSQLite3 runs the C shell's .import of the CSV into a typed table
+// (shellSchema) with no key and no index, with the pragmas of
+// LIBRARIES.md, then the NULLIF fix-up of empty cells (timed apart) and
+// the indexes the find comparison uses (untimed).
+func phaseSQLite3(dir string) (results, error) {
+	bin, err := exec.LookPath("sqlite3")
+	if err != nil {
+		return results{}, nil // reported as absent
+	}
+	_, cols, fix, err := shellSchema(csvPath(dir))
+	if err != nil {
+		return nil, err
+	}
 	db := shellDB(dir)
 	os.Remove(db)
 	if out, err := exec.Command(bin, db, "CREATE TABLE parts ("+strings.Join(cols, ", ")+")").CombinedOutput(); err != nil {
 		return nil, fmt.Errorf("sqlite3 create: %v: %s", err, out)
 	}
-	run := func(args ...string) (time.Duration, float64, error) {
-		cmd := exec.Command(bin, append([]string{db, "-cmd", "PRAGMA journal_mode=WAL", "-cmd", "PRAGMA synchronous=NORMAL", "-cmd", "PRAGMA cache_size=-65536"}, args...)...)
-		t0 := time.Now()
-		out, err := cmd.CombinedOutput()
-		d := time.Since(t0)
-		if err != nil {
-			return 0, 0, fmt.Errorf("sqlite3 %v: %v: %s", args, err, out)
-		}
-		var rss float64
-		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
-			rss = float64(ru.Maxrss) / 1024
-		}
-		return d, rss, nil
-	}
-	imp, rss, err := run(".import --csv --skip 1 " + csvPath(dir) + " parts")
+	imp, rss, _, _, err := shellRun(bin, db, ".import --csv --skip 1 "+csvPath(dir)+" parts")
 	if err != nil {
 		return nil, err
 	}
-	fixup, _, err := run("UPDATE parts SET " + strings.Join(fix, ", "))
+	fixup, _, _, _, err := shellRun(bin, db, "UPDATE parts SET "+strings.Join(fix, ", "))
 	if err != nil {
 		return nil, err
 	}
-	if _, _, err := run("CREATE INDEX p_kind ON parts(kind, vds, rdson); CREATE INDEX p_vrrm ON parts(kind, vrrm); CREATE INDEX p_mpn ON parts(mpn COLLATE NOCASE); CREATE INDEX p_mfr ON parts(mfr, mpn);"); err != nil {
+	if _, _, _, _, err := shellRun(bin, db, "CREATE INDEX p_kind ON parts(kind, vds, rdson); CREATE INDEX p_vrrm ON parts(kind, vrrm); CREATE INDEX p_mpn ON parts(mpn COLLATE NOCASE); CREATE INDEX p_mfr ON parts(mfr, mpn);"); err != nil {
 		return nil, err
 	}
 	return results{"sqlite3_import_s": imp.Seconds(), "sqlite3_fixup_s": fixup.Seconds(), "sqlite3_peak_mb": rss}, nil
+}
+
+// keyedParamIndexes is a copy of the catalog's partial parametric indexes
+// (paramIndexes in catalog/schema.go, unexported there): kind and column,
+// the column named as in the CSV (the field name; the catalog names the
+// MOSFET drain current column "f_id"). TestKeyedSchemaMatchesCatalog
+// fails when the copy drifts from the indexes catalog.Open creates.
+var keyedParamIndexes = []struct {
+	kind catalog.Kind
+	col  string
+}{
+	{catalog.Diode, "vrrm"}, {catalog.Diode, "ifav"}, {catalog.Diode, "vf"},
+	{catalog.MOSFET, "vds"}, {catalog.MOSFET, "rdson"}, {catalog.MOSFET, "id"},
+	{catalog.Fuse, "in"}, {catalog.Fuse, "un_dc"},
+}
+
+// keyedDDL is the schema of the keyed shell table: the typed columns of
+// shellSchema (kind, mfr and mpn NOT NULL as in the catalog), the
+// catalog's kind of key and indexes on the raw columns, all in place
+// before the .import so that the shell maintains them row by row:
+//
+//   - UNIQUE (mpn, mfr), for the catalog's UNIQUE (mpn_key, mfr_key). The
+//     catalog's keys are folded in Go (upper case, no spaces or hyphens)
+//     and compared by SQLite with the default BINARY collation, so the raw
+//     columns are compared BINARY here too (no COLLATE NOCASE, which would
+//     put case folding into every B-tree comparison that partsieve's
+//     SQLite does not do);
+//   - an index on (mfr, mpn, kind), for find_order (mfr_key, mpn_key, kind);
+//   - the partial indexes of keyedParamIndexes, with the catalog's
+//     predicate: kind = 'K' AND col IS NOT NULL.
+//
+// Not mirrored: the catalog's separate offers and part_sources tables
+// (one flat table here) and its extra key columns.
+func keyedDDL(cols []string) string {
+	cc := make([]string, len(cols))
+	for i, c := range cols {
+		cc[i] = c
+		for _, nn := range []string{"kind", "mfr", "mpn"} {
+			if strings.HasPrefix(c, quoteIdent(nn)+" ") {
+				cc[i] += " NOT NULL"
+			}
+		}
+	}
+	stmts := []string{
+		"CREATE TABLE parts (" + strings.Join(cc, ", ") + ", UNIQUE (mpn, mfr))",
+		`CREATE INDEX parts_order ON parts(mfr, mpn, "kind")`,
+	}
+	for _, ix := range keyedParamIndexes {
+		c := quoteIdent(ix.col)
+		stmts = append(stmts, fmt.Sprintf(`CREATE INDEX parts_%s_%s ON parts(%s) WHERE "kind" = '%s' AND %s IS NOT NULL`,
+			ix.kind, ix.col, c, ix.kind, c))
+	}
+	return strings.Join(stmts, ";\n") + ";"
+}
+
+// csvCensus reads the CSV at path and returns its number of data rows and,
+// over the partial indexes of keyedParamIndexes, how many rows of the
+// index's kind have a value in its column (the entries the catalog's
+// index holds) and how many have an empty cell. The shell imports an
+// empty cell as an empty string, not NULL, so until the NULLIF fix-up its
+// partial indexes also hold those blank entries.
+func csvCensus(path string, header []string) (rows, entries, blanks int, err error) {
+	at := map[string]int{}
+	for i, h := range header {
+		at[h] = i
+	}
+	k, ok := at["kind"]
+	if !ok {
+		return 0, 0, 0, fmt.Errorf("%s: no kind column", path)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return 0, 0, 0, err
+	}
+	defer f.Close()
+	r := csv.NewReader(bufio.NewReaderSize(f, 1<<16))
+	r.ReuseRecord = true
+	if _, err := r.Read(); err != nil {
+		return 0, 0, 0, fmt.Errorf("%s: header: %w", path, err)
+	}
+	for {
+		rec, err := r.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return 0, 0, 0, fmt.Errorf("%s: %w", path, err)
+		}
+		rows++
+		for _, ix := range keyedParamIndexes {
+			c, ok := at[ix.col]
+			if !ok || rec[k] != string(ix.kind) {
+				continue
+			}
+			if rec[c] == "" {
+				blanks++
+			} else {
+				entries++
+			}
+		}
+	}
+	return rows, entries, blanks, nil
+}
+
+// shellKeyedDB is the database of the keyed shell reference.
+func shellKeyedDB(dir string) string { return filepath.Join(dir, "shell_keyed.db") }
+
+// phaseSQLite3Keyed is the second shell reference: .import of the same CSV
+// into a table that carries the catalog's kind of key and indexes
+// (keyedDDL), created before the import, with the same pragmas as
+// phaseSQLite3 and the NULLIF fix-up timed apart. It fails when the table
+// does not end with one row per CSV row (the unique key refusing a
+// duplicate, or any other row the shell skipped).
+func phaseSQLite3Keyed(dir string) (results, error) {
+	bin, err := exec.LookPath("sqlite3")
+	if err != nil {
+		return results{}, nil // reported as absent
+	}
+	header, cols, fix, err := shellSchema(csvPath(dir))
+	if err != nil {
+		return nil, err
+	}
+	rows, entries, blanks, err := csvCensus(csvPath(dir), header)
+	if err != nil {
+		return nil, err
+	}
+	db := shellKeyedDB(dir)
+	for _, sfx := range []string{"", "-wal", "-shm"} {
+		os.Remove(db + sfx)
+	}
+	if out, err := exec.Command(bin, db, keyedDDL(cols)).CombinedOutput(); err != nil {
+		return nil, fmt.Errorf("sqlite3 create keyed table: %v: %s", err, out)
+	}
+	imp, rss, _, warn, err := shellRun(bin, db, ".import --csv --skip 1 "+csvPath(dir)+" parts")
+	if err != nil {
+		return nil, fmt.Errorf("keyed .import: %w", err)
+	}
+	if len(warn) > 0 {
+		return nil, fmt.Errorf("keyed .import of %s refused rows: %s", csvPath(dir), firstLines(string(warn), 5))
+	}
+	// the journal_mode pragma prints "wal" first: the count is the last line
+	_, _, out, _, err := shellRun(bin, db, "SELECT count(*) FROM parts")
+	if err != nil {
+		return nil, err
+	}
+	ls := strings.Fields(string(out))
+	n := -1
+	if len(ls) > 0 {
+		n, err = strconv.Atoi(ls[len(ls)-1])
+	}
+	if n < 0 || err != nil {
+		return nil, fmt.Errorf("keyed .import: no row count in %q", out)
+	}
+	if n != rows {
+		return nil, fmt.Errorf("keyed .import: %d rows in the table, %d in %s (a duplicate (mpn, mfr) or a row the shell skipped)", n, rows, csvPath(dir))
+	}
+	fixup, _, _, _, err := shellRun(bin, db, "UPDATE parts SET "+strings.Join(fix, ", "))
+	if err != nil {
+		return nil, fmt.Errorf("keyed fix-up: %w", err)
+	}
+	return results{"sqlite3_keyed_import_s": imp.Seconds(), "sqlite3_keyed_fixup_s": fixup.Seconds(), "sqlite3_keyed_peak_mb": rss,
+		"sqlite3_keyed_rows": float64(n), "sqlite3_keyed_index_entries": float64(entries), "sqlite3_keyed_blank_entries": float64(blanks)}, nil
 }
 
 // phaseBleve indexes mfr, mpn, desc and package of every CSV row into a
