@@ -9,7 +9,6 @@ import (
 	"fmt"
 	"io"
 	"math"
-	"math/bits"
 	"os"
 	"path/filepath"
 	"runtime"
@@ -40,7 +39,7 @@ import (
 //
 // Layout (little-endian):
 //
-//	magic "PSCOLS07"
+//	magic "PSCOLS08"
 //	payloads, one per set, rows in the catalog's canonical order
 //	(normalised part number, then maker: the order of the identity
 //	index), column by column:
@@ -49,11 +48,17 @@ import (
 //	    per field of the directory: float64 × rows (NaN where absent),
 //	    mfr, fuse_std, rerate: a dictionary (uvarint count, then each
 //	    string as uvarint length + bytes) and uint32 × rows indexes,
-//	    mpn: uint32 × rows end offsets, then the bytes
+//	    mpn: uint32 × rows end offsets, then the bytes,
+//	    offers: uint32 × rows end offsets, then the bytes: per part a
+//	    digest of its offers in catalog order (supplier, SKU): uvarint
+//	    count, then per offer its currency and its price breaks as
+//	    stored (JSON), each as uvarint length + bytes
 //	directory: gen int64, maxID int64, stamp (string), nsets uint32,
 //	    per set: kind, type (strings), rows uint32, nfields uint32, field
 //	    names (strings), offset uint64, length uint64, checksum uint64 of
-//	    the payload (see checksum)
+//	    the payload up to the offers section (see colSum), the offset of
+//	    that section in the payload uint64, its checksum uint64 (checked
+//	    when a part's offers are first read: a pick reads a few)
 //	trailer: directory offset uint64, directory length uint32,
 //	    "PSCOLEND"
 //
@@ -62,26 +67,59 @@ import (
 // the rows into one spill file per set, then turns each set into columns
 // in turn, so memory stays at one set.
 
-var colsMagic = []byte("PSCOLS07")
+var colsMagic = []byte("PSCOLS08")
 
 var colsTrailer = []byte("PSCOLEND")
 
-// checksum is the payload check of a set: h ← h·P + w (mod 2⁶⁴) over the
-// payload's little-endian 64-bit words (the tail zero-padded), with the
-// length mixed in. P is odd, so P is invertible mod 2⁶⁴ and a change of any
-// single word always changes h; a truncated or shifted payload changes
-// it with overwhelming likelihood. It runs at memory speed, which a CRC
-// does not (CRC-32C measured 0.18 s for 136 MB here, this 0.02 s).
-func checksum(b []byte) uint64 {
-	const p = 0x9E3779B97F4A7C15 // odd (2⁶⁴/φ, common practice as a multiplier)
-	h := uint64(len(b))
+// colSum is the payload check of a set: h ← h·P + w (mod 2⁶⁴) over the
+// payload's little-endian 64-bit words (a partial tail word zero-padded),
+// then h ← h·P + length. P is odd, so P is invertible mod 2⁶⁴ and a change
+// of any single word always changes h; a truncated or shifted payload
+// changes it with overwhelming likelihood. It runs at memory speed, which
+// a CRC does not (CRC-32C measured 0.18 s for 136 MB here, this 0.02 s).
+// It is computed as the payload is written (write, then result).
+type colSum struct {
+	h    uint64
+	part [8]byte
+	np   int
+}
+
+const colSumP = 0x9E3779B97F4A7C15 // odd (2⁶⁴/φ, common practice as a multiplier)
+
+func (c *colSum) write(b []byte) {
+	if c.np > 0 {
+		k := copy(c.part[c.np:], b)
+		c.np += k
+		b = b[k:]
+		if c.np < 8 {
+			return
+		}
+		c.h = c.h*colSumP + binary.LittleEndian.Uint64(c.part[:])
+		c.np = 0
+	}
 	for len(b) >= 8 {
-		h = h*p + binary.LittleEndian.Uint64(b)
+		c.h = c.h*colSumP + binary.LittleEndian.Uint64(b)
 		b = b[8:]
 	}
-	var t [8]byte
-	copy(t[:], b)
-	return h*p + binary.LittleEndian.Uint64(t[:])
+	c.np = copy(c.part[:], b)
+}
+
+// result returns the check of the n bytes written.
+func (c *colSum) result(n uint64) uint64 {
+	h := c.h
+	if c.np > 0 {
+		var t [8]byte
+		copy(t[:], c.part[:c.np])
+		h = h*colSumP + binary.LittleEndian.Uint64(t[:])
+	}
+	return h*colSumP + n
+}
+
+// checksum returns the colSum of b.
+func checksum(b []byte) uint64 {
+	var c colSum
+	c.write(b)
+	return c.result(uint64(len(b)))
 }
 
 // ColumnSet holds the parts of one kind and type in canonical order:
@@ -103,6 +141,41 @@ type ColumnSet struct {
 	mfr, fstd, rer dictCol
 	mpnEnds        []byte // uint32 end offsets into mpnBlob
 	mpnBlob        string
+	// the offers section, in the mapped file (valid until Close),
+	// checked and split into ends and bytes on first use
+	offSec  []byte
+	offSum  uint64
+	offOnce sync.Once
+	offErr  error
+	offEnds []byte // uint32 end offsets into offBlob
+	offBlob []byte
+}
+
+// openOffers checks the offers section and splits it.
+func (cs *ColumnSet) openOffers() error {
+	cs.offOnce.Do(func() {
+		b, n := cs.offSec, len(cs.ID)
+		if checksum(b) != cs.offSum || len(b) < 4*n {
+			cs.offErr = errStale
+			return
+		}
+		ends, blob := b[:4*n], b[4*n:]
+		prev := uint32(0)
+		for i := 0; i < n; i++ {
+			end := binary.LittleEndian.Uint32(ends[4*i:])
+			if end < prev {
+				cs.offErr = errStale
+				return
+			}
+			prev = end
+		}
+		if uint64(prev) != uint64(len(blob)) {
+			cs.offErr = errStale
+			return
+		}
+		cs.offEnds, cs.offBlob = ends, blob
+	})
+	return cs.offErr
 }
 
 // dictCol is a text column: a dictionary and one uint32 index per row.
@@ -139,6 +212,52 @@ func (cs *ColumnSet) MPN(i int) string {
 	return cs.mpnBlob[start:binary.LittleEndian.Uint32(cs.mpnEnds[4*i:])]
 }
 
+// Offers returns what the catalog's offers of row i say about price:
+// each offer's currency and price breaks, in catalog order (supplier,
+// SKU); supplier, SKU, stock and minimum order are not kept here. Valid
+// until the Columns is closed.
+func (cs *ColumnSet) Offers(i int) ([]Offer, error) {
+	if err := cs.openOffers(); err != nil {
+		return nil, err
+	}
+	start := uint32(0)
+	if i > 0 {
+		start = binary.LittleEndian.Uint32(cs.offEnds[4*(i-1):])
+	}
+	b := cs.offBlob[start:binary.LittleEndian.Uint32(cs.offEnds[4*i:])]
+	cnt, k := binary.Uvarint(b)
+	if k <= 0 || cnt > uint64(len(b)) {
+		return nil, errStale
+	}
+	b = b[k:]
+	text := func() (string, bool) {
+		l, k := binary.Uvarint(b)
+		if k <= 0 || l > uint64(len(b)-k) {
+			return "", false
+		}
+		t := string(b[k : k+int(l)])
+		b = b[k+int(l):]
+		return t, true
+	}
+	out := make([]Offer, 0, cnt)
+	for range cnt {
+		cur, ok1 := text()
+		br, ok2 := text()
+		if !ok1 || !ok2 {
+			return nil, errStale
+		}
+		breaks, err := decodeBreaks(br)
+		if err != nil {
+			return nil, fmt.Errorf("price breaks of an offer of part %s: %w", cs.MPN(i), err)
+		}
+		out = append(out, Offer{Currency: cur, Breaks: breaks})
+	}
+	if len(b) != 0 {
+		return nil, errStale
+	}
+	return out, nil
+}
+
 // Col returns the column of a Number field, nil when no part of the set
 // has it.
 func (cs *ColumnSet) Col(name string) []float64 {
@@ -167,17 +286,6 @@ func (c *Columns) Close() {
 	c.Sets = nil
 }
 
-// rowsData is a set on the writing side: rows decoded from a spill.
-type rowsData struct {
-	kind                Kind
-	typ                 string
-	id                  []int64
-	ord                 []uint32
-	fields              []string
-	num                 [][]float64
-	mfr, mpn, fstd, rer []string
-}
-
 // setInfo is one entry of the file's directory.
 type setInfo struct {
 	kind    Kind
@@ -187,7 +295,9 @@ type setInfo struct {
 	present []uint32 // per field: rows that have it
 	offset  uint64
 	length  uint64
-	sum     uint64
+	sum     uint64 // of the payload up to the offers (length split)
+	split   uint64
+	osum    uint64 // of the offers section (from split to length)
 }
 
 // kindNumFields returns the Number fields of kind k, in dictionary order.
@@ -333,13 +443,416 @@ func (s *Store) refreshColumnsAfterChange(ctx context.Context) {
 // are gone.
 func cleanColumnLeftovers(path string) { removeDeadTemps(path + ".tmp-") }
 
-// spill is one set's rows while the file is written (row by row: id,
-// ord, mask of the kind's fields present, those values, then mfr, mpn,
-// fuse_std and rerate as uvarint length + bytes).
-type spill struct {
-	info setInfo
-	f    *os.File
-	w    *bufio.Writer
+// colChunkRows is how many rows of a set are held in memory while the
+// file is written: full chunks go to the set's spill file column by
+// column, and the file is then assembled column by column from the
+// chunks, so memory stays at a chunk per set whatever the catalog's size.
+const colChunkRows = 2048
+
+// refreshCacheKiB is the SQLite page cache (KiB) of the connection that
+// reads the catalog for the column file. The read walks the identity
+// index and jumps to each row and its offers: a cache cannot hold a large
+// catalog anyway (the pages come from the operating system's file cache),
+// and the default 64 MiB one cost ~130 MB of resident memory at a
+// million parts (measured). Tool choice.
+const refreshCacheKiB = 8192
+
+// dictBuilder gives each distinct string an index, in order of first
+// appearance.
+type dictBuilder struct {
+	at    map[string]uint32
+	words []string
+}
+
+func (d *dictBuilder) index(s string) uint32 {
+	if k, ok := d.at[s]; ok {
+		return k
+	}
+	if d.at == nil {
+		d.at = map[string]uint32{}
+	}
+	k := uint32(len(d.words))
+	d.at[s] = k
+	d.words = append(d.words, s)
+	return k
+}
+
+// The blocks of a spilled chunk, in the order they are written: ids,
+// ords, one per field of the kind, the three dictionary indexes, the
+// part-number ends and bytes, the offer ends and bytes.
+const (
+	blkID = iota
+	blkOrd
+	blkNum // first number field; the dictionary blocks follow the fields
+)
+
+// setSpill is one set while the file is written.
+type setSpill struct {
+	info   setInfo // fields: all Number fields of the kind
+	f      *os.File
+	w      *bufio.Writer
+	size   int64
+	chunks [][]int64 // per chunk: the offset of each block, then the end
+
+	dicts              [3]dictBuilder // mfr, fuse_std, rerate
+	mpnTotal, offTotal uint64
+	id                 []int64
+	ord                []uint32
+	num                [][]float64
+	dix                [3][]uint32
+	mpnEnd, offEnd     []uint32 // ends within the chunk
+	mpn, offers        []byte
+	enc                []byte
+}
+
+func newSetSpill(f *os.File, k Kind, typ string, fields []string) *setSpill {
+	sp := &setSpill{info: setInfo{kind: k, typ: typ, fields: fields, present: make([]uint32, len(fields))},
+		f: f, w: bufio.NewWriterSize(f, 1<<16), num: make([][]float64, len(fields))}
+	return sp
+}
+
+// add appends a part to the chunk (its offers follow with setOffers).
+func (sp *setSpill) add(id int64, ord uint32, nums []sql.NullFloat64, numIdx []int, mfr, mpn, fstd, rer string) error {
+	if len(sp.id) == colChunkRows {
+		if err := sp.flush(); err != nil {
+			return err
+		}
+	}
+	sp.id = append(sp.id, id)
+	sp.ord = append(sp.ord, ord)
+	for j, c := range numIdx {
+		v := math.NaN()
+		if nums[c].Valid {
+			v = nums[c].Float64
+			sp.info.present[j]++
+		}
+		sp.num[j] = append(sp.num[j], v)
+	}
+	for d, t := range [3]string{mfr, fstd, rer} {
+		sp.dix[d] = append(sp.dix[d], sp.dicts[d].index(t))
+	}
+	sp.mpn = append(sp.mpn, mpn...)
+	sp.mpnEnd = append(sp.mpnEnd, uint32(len(sp.mpn)))
+	sp.mpnTotal += uint64(len(mpn))
+	sp.info.rows++
+	return nil
+}
+
+// setOffers records the offers digest of the part added last.
+func (sp *setSpill) setOffers(digest []byte) {
+	sp.offers = append(sp.offers, digest...)
+	sp.offEnd = append(sp.offEnd, uint32(len(sp.offers)))
+	sp.offTotal += uint64(len(digest))
+}
+
+// flush writes the chunk to the spill, block by block.
+func (sp *setSpill) flush() error {
+	n := len(sp.id)
+	if n == 0 {
+		return nil
+	}
+	offs := make([]int64, 0, blkNum+len(sp.num)+8)
+	put := func(b []byte) error {
+		offs = append(offs, sp.size)
+		_, err := sp.w.Write(b)
+		sp.size += int64(len(b))
+		return err
+	}
+	e := sp.enc[:0]
+	for _, v := range sp.id {
+		e = binary.LittleEndian.AppendUint64(e, uint64(v))
+	}
+	mark := []int{len(e)}
+	for _, v := range sp.ord {
+		e = binary.LittleEndian.AppendUint32(e, v)
+	}
+	mark = append(mark, len(e))
+	for _, col := range sp.num {
+		for _, v := range col {
+			e = binary.LittleEndian.AppendUint64(e, math.Float64bits(v))
+		}
+		mark = append(mark, len(e))
+	}
+	for _, ix := range sp.dix {
+		for _, v := range ix {
+			e = binary.LittleEndian.AppendUint32(e, v)
+		}
+		mark = append(mark, len(e))
+	}
+	for _, v := range sp.mpnEnd {
+		e = binary.LittleEndian.AppendUint32(e, v)
+	}
+	mark = append(mark, len(e))
+	e = append(e, sp.mpn...)
+	mark = append(mark, len(e))
+	for _, v := range sp.offEnd {
+		e = binary.LittleEndian.AppendUint32(e, v)
+	}
+	mark = append(mark, len(e))
+	e = append(e, sp.offers...)
+	mark = append(mark, len(e))
+	prev := 0
+	for _, m := range mark {
+		if err := put(e[prev:m]); err != nil {
+			return err
+		}
+		prev = m
+	}
+	offs = append(offs, sp.size)
+	sp.enc = e
+	sp.chunks = append(sp.chunks, offs)
+	sp.id, sp.ord, sp.mpnEnd, sp.offEnd = sp.id[:0], sp.ord[:0], sp.mpnEnd[:0], sp.offEnd[:0]
+	sp.mpn, sp.offers = sp.mpn[:0], sp.offers[:0]
+	for j := range sp.num {
+		sp.num[j] = sp.num[j][:0]
+	}
+	for d := range sp.dix {
+		sp.dix[d] = sp.dix[d][:0]
+	}
+	return nil
+}
+
+// payloadWriter writes a set's payload, keeping its length and checksum.
+type payloadWriter struct {
+	w     *bufio.Writer
+	n     uint64
+	sum   colSum
+	err   error
+	split uint64 // where the offers section starts
+	sum1  uint64 // the check of the payload before it
+}
+
+// startOffers ends the first checked section: the offers section is
+// checked apart, when first read.
+func (p *payloadWriter) startOffers() {
+	p.split, p.sum1 = p.n, p.sum.result(p.n)
+	p.sum = colSum{}
+}
+
+func (p *payloadWriter) write(b []byte) {
+	if p.err != nil {
+		return
+	}
+	_, p.err = p.w.Write(b)
+	p.sum.write(b)
+	p.n += uint64(len(b))
+}
+
+func (p *payloadWriter) pad(k uint64) {
+	var z [8]byte
+	if r := p.n % k; r != 0 {
+		p.write(z[:k-r])
+	}
+}
+
+// assemble writes the set's payload (the layout above) from its chunks.
+func (sp *setSpill) assemble(p *payloadWriter) error {
+	if err := sp.flush(); err != nil {
+		return err
+	}
+	if err := sp.w.Flush(); err != nil {
+		return err
+	}
+	if sp.mpnTotal > math.MaxUint32 || sp.offTotal > math.MaxUint32 {
+		return fmt.Errorf("a set of %d parts has more than 4 GiB of part numbers or offers", sp.info.rows)
+	}
+	var buf []byte
+	block := func(c []int64, b int) []byte {
+		if p.err != nil {
+			return nil
+		}
+		l := int(c[b+1] - c[b])
+		buf = slices.Grow(buf[:0], l)[:l]
+		if _, err := sp.f.ReadAt(buf, c[b]); err != nil {
+			p.err = fmt.Errorf("column spill: %w", err)
+			return nil
+		}
+		return buf
+	}
+	copyBlocks := func(b int) {
+		for _, c := range sp.chunks {
+			p.write(block(c, b))
+		}
+	}
+	nf := len(sp.num)
+	dictBlk := blkNum + nf
+	mpnEndBlk := dictBlk + 3
+	copyBlocks(blkID)
+	copyBlocks(blkOrd)
+	p.pad(8)
+	for j := range nf {
+		if sp.info.present[j] > 0 {
+			copyBlocks(blkNum + j)
+		}
+	}
+	for d := range sp.dicts {
+		words := sp.dicts[d].words
+		if len(words) == 0 {
+			words = []string{""}
+		}
+		h := binary.AppendUvarint(nil, uint64(len(words)))
+		for _, w := range words {
+			h = appendString(h, w)
+		}
+		p.write(h)
+		p.pad(4)
+		copyBlocks(dictBlk + d)
+	}
+	// ends run over the whole set: each chunk's are shifted by what the
+	// chunks before it hold
+	ends := func(b int) {
+		base := uint32(0)
+		for _, c := range sp.chunks {
+			e := block(c, b)
+			last := uint32(0)
+			for i := 0; i+4 <= len(e); i += 4 {
+				last = binary.LittleEndian.Uint32(e[i:])
+				binary.LittleEndian.PutUint32(e[i:], last+base)
+			}
+			p.write(e)
+			base += last
+		}
+	}
+	ends(mpnEndBlk)
+	copyBlocks(mpnEndBlk + 1)
+	p.startOffers()
+	ends(mpnEndBlk + 2)
+	copyBlocks(mpnEndBlk + 3)
+	return p.err
+}
+
+// appendOfferDigest appends one offer to a part's offers digest: its
+// currency and its price breaks as stored (JSON text, decoded on use).
+func appendOfferDigest(b []byte, currency, breaks string) []byte {
+	return appendString(appendString(b, currency), breaks)
+}
+
+// offerDigests is the spill of every part's offers digest (see the
+// layout), read back by part id.
+type offerDigests struct {
+	f   *os.File
+	at  []digestAt         // by part id (dense ids)
+	atM map[int64]digestAt // the same when ids are sparse
+}
+
+// digestAt is where a part's digest is in the spill; n is 0 when the
+// part has no offers.
+type digestAt struct {
+	off int64
+	n   uint32
+}
+
+// noOffers is the digest of a part without offers: a count of 0.
+var noOffers = []byte{0}
+
+// spillOfferDigests reads the offers in key order (part id, supplier,
+// SKU: the order they were written in, so the reads are sequential) and
+// writes each part's digest to a temporary file.
+func spillOfferDigests(ctx context.Context, q queryer, dir, prefix string, maxID int64) (*offerDigests, error) {
+	f, err := os.CreateTemp(dir, prefix+"offers-")
+	if err != nil {
+		return nil, err
+	}
+	d := &offerDigests{f: f}
+	ok := false
+	defer func() {
+		if !ok {
+			d.close()
+		}
+	}()
+	var nParts int64
+	if err := q.QueryRowContext(ctx, `SELECT count(*) FROM parts`).Scan(&nParts); err != nil {
+		return nil, err
+	}
+	if maxID >= 0 && maxID <= 4*nParts+1024 {
+		d.at = make([]digestAt, maxID+1)
+	} else {
+		d.atM = map[int64]digestAt{}
+	}
+	rows, err := q.QueryContext(ctx, `SELECT part_id, currency, breaks FROM offers ORDER BY part_id, supplier_key, sku`)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	w := bufio.NewWriterSize(f, 1<<16)
+	var size int64
+	var pid, last int64
+	var cur, breaks string
+	n := 0
+	var entries, digest []byte
+	flush := func() error {
+		if n == 0 {
+			return nil
+		}
+		digest = binary.AppendUvarint(digest[:0], uint64(n))
+		digest = append(digest, entries...)
+		if len(digest) > math.MaxUint32 {
+			return fmt.Errorf("the offers of part %d exceed 4 GiB", last)
+		}
+		at := digestAt{off: size, n: uint32(len(digest))}
+		if d.at != nil {
+			if last < 0 || last >= int64(len(d.at)) {
+				return fmt.Errorf("offer of part %d beyond the largest part id %d", last, maxID)
+			}
+			d.at[last] = at
+		} else {
+			d.atM[last] = at
+		}
+		_, err := w.Write(digest)
+		size += int64(len(digest))
+		n, entries = 0, entries[:0]
+		return err
+	}
+	for rows.Next() {
+		if err := rows.Scan(&pid, &cur, &breaks); err != nil {
+			return nil, err
+		}
+		if n > 0 && pid != last {
+			if err := flush(); err != nil {
+				return nil, err
+			}
+		}
+		last = pid
+		n++
+		entries = appendOfferDigest(entries, cur, breaks)
+	}
+	if err := rows.Err(); err != nil {
+		return nil, err
+	}
+	if err := flush(); err != nil {
+		return nil, err
+	}
+	if err := w.Flush(); err != nil {
+		return nil, err
+	}
+	ok = true
+	return d, nil
+}
+
+// get appends the digest of part id to b.
+func (d *offerDigests) get(id int64, b []byte) ([]byte, error) {
+	var at digestAt
+	if d.at != nil {
+		if id >= 0 && id < int64(len(d.at)) {
+			at = d.at[id]
+		}
+	} else {
+		at = d.atM[id]
+	}
+	if at.n == 0 {
+		return append(b, noOffers...), nil
+	}
+	b = slices.Grow(b, int(at.n))
+	out := b[len(b) : len(b)+int(at.n)]
+	if _, err := d.f.ReadAt(out, at.off); err != nil {
+		return nil, err
+	}
+	return b[:len(b)+int(at.n)], nil
+}
+
+func (d *offerDigests) close() {
+	d.f.Close()
+	os.Remove(d.f.Name())
 }
 
 // writeColumns writes the column file of the catalog as seen by q (one
@@ -352,11 +865,16 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 	cleanColumnLeftovers(final)
 	tmpDir := filepath.Dir(final)
 	prefix := filepath.Base(final) + ".tmp-" + strconv.Itoa(os.Getpid()) + "-"
-	kindFields := map[Kind][]string{}
-	var cols []string
-	for _, k := range Kinds {
-		kindFields[k] = kindNumFields(k)
+	if e, ok := q.(interface {
+		ExecContext(context.Context, string, ...any) (sql.Result, error)
+	}); ok {
+		if _, err := e.ExecContext(ctx, fmt.Sprintf("PRAGMA cache_size = -%d", refreshCacheKiB)); err == nil {
+			defer e.ExecContext(context.WithoutCancel(ctx), fmt.Sprintf("PRAGMA cache_size = -%d", storeCacheKiB))
+		}
 	}
+	kindFields := map[Kind][]string{}
+	kindIdx := map[Kind][]int{}
+	var cols []string
 	numIdx := map[string]int{}
 	for i := range Fields {
 		if Fields[i].Type == Number {
@@ -364,6 +882,27 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 			cols = append(cols, qcol(Fields[i].Name))
 		}
 	}
+	for _, k := range Kinds {
+		kindFields[k] = kindNumFields(k)
+		for _, name := range kindFields[k] {
+			kindIdx[k] = append(kindIdx[k], numIdx[name])
+		}
+	}
+	var order []*setSpill
+	defer func() {
+		for _, sp := range order {
+			sp.f.Close()
+			os.Remove(sp.f.Name())
+		}
+	}()
+	// the offers first, in their own order (sequential reads), into a
+	// spill of digests by part id; the parts then come in canonical
+	// order, each finding its digest there
+	digests, err := spillOfferDigests(ctx, q, tmpDir, prefix, st.maxID)
+	if err != nil {
+		return "", err
+	}
+	defer digests.close()
 	stmt := `SELECT parts.id, parts."kind", parts."type", parts."mfr", parts."mpn", parts."fuse_std", parts."rerate", ` +
 		strings.Join(cols, ", ") + ` FROM parts ORDER BY parts.mpn_key, parts.mfr_key`
 	rows, err := q.QueryContext(ctx, stmt)
@@ -371,14 +910,7 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 		return "", err
 	}
 	defer rows.Close()
-	sets := map[string]*spill{}
-	var order []*spill
-	defer func() {
-		for _, sp := range order {
-			sp.f.Close()
-			os.Remove(sp.f.Name())
-		}
-	}()
+	sets := map[string]*setSpill{}
 	var id int64
 	var kind, typ, mfr, mpn, fstd, rer sql.NullString
 	nums := make([]sql.NullFloat64, len(cols))
@@ -386,8 +918,8 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 	for i := range nums {
 		dest = append(dest, &nums[i])
 	}
-	var buf []byte
 	var ord uint32
+	var digest []byte
 	for rows.Next() {
 		if err := rows.Scan(dest...); err != nil {
 			return "", err
@@ -404,41 +936,23 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 			if err != nil {
 				return "", err
 			}
-			sp = &spill{info: setInfo{kind: k, typ: typ.String, fields: fields, present: make([]uint32, len(fields))}, f: f}
-			sp.w = bufio.NewWriterSize(f, 1<<16)
+			sp = newSetSpill(f, k, typ.String, fields)
 			sets[key] = sp
 			order = append(order, sp)
 		}
-		buf = buf[:0]
-		buf = binary.LittleEndian.AppendUint64(buf, uint64(id))
-		buf = binary.LittleEndian.AppendUint32(buf, ord)
+		if err := sp.add(id, ord, nums, kindIdx[k], mfr.String, mpn.String, fstd.String, rer.String); err != nil {
+			return "", fmt.Errorf("column spill: %w", err)
+		}
 		ord++
-		var mask uint64
-		for j, name := range fields {
-			if nums[numIdx[name]].Valid {
-				mask |= 1 << j
-				sp.info.present[j]++
-			}
+		if digest, err = digests.get(id, digest[:0]); err != nil {
+			return "", fmt.Errorf("offers spill: %w", err)
 		}
-		buf = binary.LittleEndian.AppendUint64(buf, mask)
-		for j, name := range fields {
-			if mask&(1<<j) != 0 {
-				buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(nums[numIdx[name]].Float64))
-			}
-		}
-		for _, t := range [4]string{mfr.String, mpn.String, fstd.String, rer.String} {
-			buf = appendString(buf, t)
-		}
-		if _, err := sp.w.Write(buf); err != nil {
-			return "", err
-		}
-		sp.info.rows++
-		sp.info.length += uint64(len(buf))
+		sp.setOffers(digest)
 	}
 	if err := rows.Err(); err != nil {
 		return "", err
 	}
-	slices.SortFunc(order, func(a, b *spill) int {
+	slices.SortFunc(order, func(a, b *setSpill) int {
 		if c := strings.Compare(string(a.info.kind), string(b.info.kind)); c != 0 {
 			return c
 		}
@@ -462,32 +976,26 @@ func (s *Store) writeColumns(ctx context.Context, q queryer, st colStamp) (strin
 	off := uint64(len(colsMagic))
 	infos := make([]setInfo, len(order))
 	for i, sp := range order {
-		// one set at a time: rows back into columns, then written
-		if err := sp.w.Flush(); err != nil {
-			return "", err
-		}
-		raw, err := os.ReadFile(sp.f.Name())
-		if err != nil {
-			return "", err
-		}
-		cs, err := decodeRows(raw, &sp.info)
-		if err != nil {
-			return "", fmt.Errorf("column spill: %w", err)
-		}
-		payload := encodeSet(cs)
+		// one set at a time, column by column from its chunks
 		if p := off % 8; p != 0 {
 			if _, err := w.Write(make([]byte, 8-p)); err != nil {
 				return "", err
 			}
 			off += 8 - p
 		}
-		in := setInfo{kind: cs.kind, typ: cs.typ, rows: uint32(len(cs.id)), fields: cs.fields,
-			offset: off, length: uint64(len(payload)), sum: checksum(payload)}
-		if _, err := w.Write(payload); err != nil {
+		pw := &payloadWriter{w: w}
+		if err := sp.assemble(pw); err != nil {
 			return "", err
 		}
-		off += in.length
-		infos[i] = in
+		var fields []string
+		for j, name := range sp.info.fields {
+			if sp.info.present[j] > 0 {
+				fields = append(fields, name)
+			}
+		}
+		infos[i] = setInfo{kind: sp.info.kind, typ: sp.info.typ, rows: sp.info.rows, fields: fields,
+			offset: off, length: pw.n, sum: pw.sum1, split: pw.split, osum: pw.sum.result(pw.n - pw.split)}
+		off += pw.n
 		sp.f.Close()
 		os.Remove(sp.f.Name())
 	}
@@ -544,73 +1052,8 @@ func encodeDir(st colStamp, infos []setInfo) []byte {
 		b = binary.LittleEndian.AppendUint64(b, in.offset)
 		b = binary.LittleEndian.AppendUint64(b, in.length)
 		b = binary.LittleEndian.AppendUint64(b, in.sum)
-	}
-	return b
-}
-
-// encodeSet writes a set column by column (the payload layout above;
-// the caller starts it at an offset that is a multiple of 8, and every
-// number column stays 8-aligned, index columns 4-aligned).
-func encodeSet(cs *rowsData) []byte {
-	n := len(cs.id)
-	size := n*16 + len(cs.num)*n*8 + n*16 + 64
-	for _, m := range cs.mpn {
-		size += len(m)
-	}
-	b := make([]byte, 0, size)
-	pad := func(k int) {
-		for len(b)%k != 0 {
-			b = append(b, 0)
-		}
-	}
-	for _, id := range cs.id {
-		b = binary.LittleEndian.AppendUint64(b, uint64(id))
-	}
-	for _, o := range cs.ord {
-		b = binary.LittleEndian.AppendUint32(b, o)
-	}
-	pad(8)
-	for _, col := range cs.num {
-		for _, v := range col {
-			b = binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
-		}
-	}
-	empty := make([]string, n)
-	dict := func(vals []string) {
-		if vals == nil {
-			vals = empty
-		}
-		at := map[string]uint32{}
-		var words []string
-		idx := make([]uint32, n)
-		for i, v := range vals {
-			k, ok := at[v]
-			if !ok {
-				k = uint32(len(words))
-				at[v] = k
-				words = append(words, v)
-			}
-			idx[i] = k
-		}
-		b = binary.AppendUvarint(b, uint64(len(words)))
-		for _, w := range words {
-			b = appendString(b, w)
-		}
-		pad(4)
-		for _, k := range idx {
-			b = binary.LittleEndian.AppendUint32(b, k)
-		}
-	}
-	dict(cs.mfr)
-	dict(cs.fstd)
-	dict(cs.rer)
-	end := uint32(0)
-	for _, m := range cs.mpn {
-		end += uint32(len(m))
-		b = binary.LittleEndian.AppendUint32(b, end)
-	}
-	for _, m := range cs.mpn {
-		b = append(b, m...)
+		b = binary.LittleEndian.AppendUint64(b, in.split)
+		b = binary.LittleEndian.AppendUint64(b, in.osum)
 	}
 	return b
 }
@@ -708,8 +1151,8 @@ func readDir(f *os.File, st colStamp) ([]setInfo, error) {
 		for range nf {
 			in.fields = append(in.fields, h.str())
 		}
-		in.offset, in.length, in.sum = h.u64(), h.u64(), h.u64()
-		if h.err != nil || in.offset < uint64(len(colsMagic)) || in.offset > dOff || in.length > dOff-in.offset {
+		in.offset, in.length, in.sum, in.split, in.osum = h.u64(), h.u64(), h.u64(), h.u64(), h.u64()
+		if h.err != nil || in.offset < uint64(len(colsMagic)) || in.offset > dOff || in.length > dOff-in.offset || in.split > in.length {
 			return nil, errStale
 		}
 	}
@@ -824,9 +1267,11 @@ func readSet(buf []byte, in *setInfo) (*ColumnSet, error) {
 	if uint64(n)*(12+8*uint64(len(in.fields))+16) > uint64(len(buf)) {
 		return nil, errStale
 	}
-	if checksum(buf) != in.sum {
+	if checksum(buf[:in.split]) != in.sum {
 		return nil, errStale
 	}
+	offSec := buf[in.split:]
+	buf = buf[:in.split]
 	cs := &ColumnSet{Kind: in.kind, Type: in.typ, Fields: in.fields}
 	pos := 0
 	take := func(k, align int) []byte {
@@ -881,129 +1326,33 @@ func readSet(buf []byte, in *setInfo) (*ColumnSet, error) {
 	if !dict(&cs.mfr) || !dict(&cs.fstd) || !dict(&cs.rer) {
 		return nil, errStale
 	}
-	if cs.mpnEnds = take(4*n, 1); cs.mpnEnds == nil {
-		return nil, errStale
-	}
-	cs.mpnBlob = string(buf[pos:]) // a copy: part numbers outlive the mapping
-	prev := uint32(0)
-	for i := 0; i < n; i++ {
-		end := binary.LittleEndian.Uint32(cs.mpnEnds[4*i:])
-		if end < prev || uint64(end) > uint64(len(cs.mpnBlob)) {
-			return nil, errStale
+	// ends, then the bytes they end in (monotonic, the last one the length)
+	blob := func(last bool) (ends, b []byte, ok bool) {
+		if ends = take(4*n, 1); ends == nil {
+			return nil, nil, false
 		}
-		prev = end
+		prev := uint32(0)
+		for i := 0; i < n; i++ {
+			end := binary.LittleEndian.Uint32(ends[4*i:])
+			if end < prev {
+				return nil, nil, false
+			}
+			prev = end
+		}
+		if b = take(int(prev), 1); b == nil || last && pos != len(buf) {
+			return nil, nil, false
+		}
+		return ends, b, true
 	}
-	if int(prev) != len(cs.mpnBlob) {
+	mpnEnds, mpnBlob, ok := blob(true)
+	if !ok {
 		return nil, errStale
 	}
-	cs.mpnEnds = append([]byte(nil), cs.mpnEnds...) // small; survives the mapping too
+	cs.offSec, cs.offSum = offSec, in.osum
+	cs.mpnBlob = string(mpnBlob)                 // a copy: part numbers outlive the mapping
+	cs.mpnEnds = append([]byte(nil), mpnEnds...) // small; survives the mapping too
 	if in.kind != Fuse {
 		cs.fstd, cs.rer = dictCol{}, dictCol{}
-	}
-	return cs, nil
-}
-
-// decodeRows turns a set's spill (rows, see spill) into columns; only
-// the fields some row has get a column.
-func decodeRows(buf []byte, in *setInfo) (*rowsData, error) {
-	n := int(in.rows)
-	if uint64(n)*20 > uint64(len(buf)) {
-		return nil, errStale
-	}
-	cs := &rowsData{kind: in.kind, typ: in.typ, id: make([]int64, n), ord: make([]uint32, n), mfr: make([]string, n), mpn: make([]string, n)}
-	isFuse := in.kind == Fuse
-	if isFuse {
-		cs.fstd, cs.rer = make([]string, n), make([]string, n)
-	}
-	// columns only for fields some row has; slot[j] is the column of
-	// file field j, -1 when none
-	slot := make([]int, len(in.fields))
-	for j, name := range in.fields {
-		slot[j] = -1
-		if in.present[j] > 0 {
-			slot[j] = len(cs.fields)
-			cs.fields = append(cs.fields, name)
-			col := make([]float64, n)
-			for i := range col {
-				col[i] = math.NaN()
-			}
-			cs.num = append(cs.num, col)
-		}
-	}
-	intern := map[string]string{}
-	internStr := func(b []byte) string {
-		if s, ok := intern[string(b)]; ok {
-			return s
-		}
-		s := string(b)
-		if len(intern) < 1<<14 {
-			intern[s] = s
-		}
-		return s
-	}
-	// part numbers share one string per set
-	mpnAll := make([]byte, 0, n*12)
-	mpnEnd := make([]int, n)
-	pos := 0
-	text := func() ([]byte, bool) {
-		l, k := binary.Uvarint(buf[pos:])
-		if k <= 0 || l > uint64(len(buf)-pos-k) {
-			return nil, false
-		}
-		t := buf[pos+k : pos+k+int(l)]
-		pos += k + int(l)
-		return t, true
-	}
-	for i := 0; i < n; i++ {
-		if len(buf)-pos < 20 {
-			return nil, errStale
-		}
-		cs.id[i] = int64(binary.LittleEndian.Uint64(buf[pos:]))
-		cs.ord[i] = binary.LittleEndian.Uint32(buf[pos+8:])
-		mask := binary.LittleEndian.Uint64(buf[pos+12:])
-		pos += 20
-		if bits.Len64(mask) > len(in.fields) || len(buf)-pos < 8*bits.OnesCount64(mask) {
-			return nil, errStale
-		}
-		for m := mask; m != 0; m &= m - 1 {
-			j := bits.TrailingZeros64(m)
-			if slot[j] < 0 {
-				return nil, errStale
-			}
-			cs.num[slot[j]][i] = math.Float64frombits(binary.LittleEndian.Uint64(buf[pos:]))
-			pos += 8
-		}
-		t, ok := text()
-		if !ok {
-			return nil, errStale
-		}
-		cs.mfr[i] = internStr(t)
-		if t, ok = text(); !ok {
-			return nil, errStale
-		}
-		mpnAll = append(mpnAll, t...)
-		mpnEnd[i] = len(mpnAll)
-		if t, ok = text(); !ok {
-			return nil, errStale
-		}
-		if isFuse {
-			cs.fstd[i] = internStr(t)
-		}
-		if t, ok = text(); !ok {
-			return nil, errStale
-		}
-		if isFuse {
-			cs.rer[i] = internStr(t)
-		}
-	}
-	if pos != len(buf) {
-		return nil, errStale // longer than its rows
-	}
-	all := string(mpnAll)
-	start := 0
-	for i, end := range mpnEnd {
-		cs.mpn[i] = all[start:end]
-		start = end
 	}
 	return cs, nil
 }

@@ -2,6 +2,7 @@ package catalog
 
 import (
 	"context"
+	"encoding/binary"
 	"math"
 	"os"
 	"path/filepath"
@@ -30,9 +31,15 @@ func colsOf(t testing.TB, s *Store) *Columns {
 // by kind and type, in canonical order, with the fuse texts.
 func TestColumnsMatchCatalog(t *testing.T) {
 	s := openTemp(t)
-	importParts(t, s, "sample", sampleParts()...)
+	ps := sampleParts()
+	// two offers, given out of supplier order, for the offers digest
+	ps[1].Offers = []Offer{
+		offer("Zephyr Stock", "ZS-9", 40, 1, "usd", PriceBreak{1, 1.5}, PriceBreak{1000, 0.75}),
+		offer("Alder Components", "AC-1", 0, 10, "gbp", PriceBreak{10, 0.9}),
+	}
+	importParts(t, s, "sample", ps...)
 	c := colsOf(t, s)
-	all, err := s.Find(context.Background(), Query{})
+	all, err := s.Find(context.Background(), Query{Offers: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -40,7 +47,7 @@ func TestColumnsMatchCatalog(t *testing.T) {
 	for _, p := range all {
 		byKey[p.Mfr+"|"+p.MPN] = p
 	}
-	n := 0
+	n, priced := 0, 0
 	var ords []uint32
 	for _, cs := range c.Sets {
 		for i := 0; i < cs.Len(); i++ {
@@ -64,6 +71,24 @@ func TestColumnsMatchCatalog(t *testing.T) {
 					t.Errorf("%s %s: column %v, catalog %v (present %v)", p.MPN, name, got, want, has)
 				}
 			}
+			// the offers digest: currency and breaks of each offer, in
+			// the catalog's order
+			offs, err := cs.Offers(i)
+			if err != nil {
+				t.Fatalf("%s: offers: %v", p.MPN, err)
+			}
+			if len(offs) != len(p.Offers) {
+				t.Errorf("%s: %d offers in the columns, %d in the catalog", p.MPN, len(offs), len(p.Offers))
+			} else {
+				for k := range offs {
+					if offs[k].Currency != p.Offers[k].Currency || !slices.Equal(offs[k].Breaks, p.Offers[k].Breaks) {
+						t.Errorf("%s offer %d: columns %+v, catalog %+v", p.MPN, k, offs[k], p.Offers[k])
+					}
+				}
+			}
+			if len(p.Offers) > 0 {
+				priced++
+			}
 			if cs.Kind == Fuse && (cs.FuseStd(i) != p.FuseStd || cs.Rerate(i) != p.Rerate) {
 				t.Errorf("%s: fuse texts %q %q, catalog %q %q", p.MPN, cs.FuseStd(i), cs.Rerate(i), p.FuseStd, p.Rerate)
 			}
@@ -76,6 +101,9 @@ func TestColumnsMatchCatalog(t *testing.T) {
 	}
 	if n != len(all) {
 		t.Errorf("%d parts in the column file, %d in the catalog", n, len(all))
+	}
+	if priced != 2 {
+		t.Errorf("%d parts with offers seen, want 2", priced)
 	}
 	slices.Sort(ords)
 	for i, o := range ords {
@@ -188,7 +216,7 @@ func FuzzReadColumns(f *testing.F) {
 	}
 	f.Add(good)
 	f.Add(good[:len(good)/2])
-	f.Add([]byte("PSCOLS07"))
+	f.Add([]byte("PSCOLS08"))
 	dir := f.TempDir()
 	f.Fuzz(func(t *testing.T, data []byte) {
 		path := filepath.Join(dir, "cols")
@@ -203,6 +231,7 @@ func FuzzReadColumns(f *testing.F) {
 				}
 				for i := 0; i < cs.Len(); i++ {
 					_ = cs.MPN(i) + cs.Mfr(i) + cs.FuseStd(i) + cs.Rerate(i)
+					cs.Offers(i) // a result or an error, never a panic
 					for _, col := range cs.Num {
 						_ = col[i]
 					}
@@ -274,4 +303,138 @@ func TestColumnsOldReaderKeepsItsFile(t *testing.T) {
 	if got := colsOf(t, s); len(got.Sets) == 0 || got.Gen == v.Gen {
 		t.Errorf("a new view should see the new generation, got %d (old %d)", got.Gen, v.Gen)
 	}
+}
+
+// TestOfferDigestsDenseAndSparse checks that the spill of offer digests
+// gives the same digest for every part id whether it is indexed by a
+// dense array (ids close to the part count) or a map (sparse ids).
+func TestOfferDigestsDenseAndSparse(t *testing.T) {
+	ctx := context.Background()
+	s := openTemp(t)
+	ps := sampleParts()
+	ps[1].Offers = []Offer{offer("Zephyr Stock", "ZS-9", 40, 1, "usd", PriceBreak{1, 1.5})}
+	importParts(t, s, "sample", ps...)
+	var maxID int64
+	if err := s.db.QueryRow(`SELECT max(id) FROM parts`).Scan(&maxID); err != nil {
+		t.Fatal(err)
+	}
+	dense, err := spillOfferDigests(ctx, s.db, t.TempDir(), "d-", maxID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer dense.close()
+	sparse, err := spillOfferDigests(ctx, s.db, t.TempDir(), "s-", 1<<40)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer sparse.close()
+	if dense.at == nil || sparse.atM == nil {
+		t.Fatalf("index kinds: dense %v, sparse %v", dense.at != nil, sparse.atM != nil)
+	}
+	priced := 0
+	for id := int64(-1); id <= maxID+1; id++ {
+		a, err1 := dense.get(id, nil)
+		b, err2 := sparse.get(id, nil)
+		if err1 != nil || err2 != nil || !slices.Equal(a, b) {
+			t.Fatalf("part %d: dense %v %v, sparse %v %v", id, a, err1, b, err2)
+		}
+		if !slices.Equal(a, noOffers) {
+			priced++
+		}
+	}
+	if priced != 2 {
+		t.Errorf("%d parts with an offers digest, want 2", priced)
+	}
+}
+
+// TestColumnsDamagedOffers checks that damage in a set's offers section
+// is found when its offers are first read (the section is checked apart,
+// so a pick need not read every offer), and that the numbers stay usable.
+func TestColumnsDamagedOffers(t *testing.T) {
+	ctx := context.Background()
+	s := openTemp(t)
+	importParts(t, s, "sample", sampleParts()...)
+	v, err := s.View(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	infos, err := readColumnsHeader(s.colsPath(), v.st)
+	v.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	// the set of the part with an offer (sampleParts()[0])
+	var hit *setInfo
+	c := colsOf(t, s)
+	for k, cs := range c.Sets {
+		for i := 0; i < cs.Len(); i++ {
+			if o, err := cs.Offers(i); err == nil && len(o) > 0 {
+				hit = &infos[k]
+			}
+		}
+	}
+	c.Close()
+	if hit == nil {
+		t.Fatal("no set with offers")
+	}
+	f, err := os.OpenFile(s.colsPath(), os.O_RDWR, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	last := make([]byte, 1)
+	at := int64(hit.offset + hit.length - 1) // the last byte of its offers
+	if _, err := f.ReadAt(last, at); err != nil {
+		t.Fatal(err)
+	}
+	last[0] ^= 0x5a
+	if _, err := f.WriteAt(last, at); err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	c = colsOf(t, s)
+	bad := 0
+	for _, cs := range c.Sets {
+		if cs.Kind == hit.kind && cs.Type == hit.typ {
+			if cs.Len() == 0 || len(cs.Num) == 0 {
+				t.Fatalf("set %s/%s lost its numbers", cs.Kind, cs.Type)
+			}
+			for i := 0; i < cs.Len(); i++ {
+				if _, err := cs.Offers(i); err == errStale {
+					bad++
+				}
+			}
+		} else {
+			for i := 0; i < cs.Len(); i++ {
+				if _, err := cs.Offers(i); err != nil {
+					t.Errorf("set %s/%s row %d: %v", cs.Kind, cs.Type, i, err)
+				}
+			}
+		}
+	}
+	if bad == 0 {
+		t.Error("damaged offers section not found")
+	}
+}
+
+// FuzzOffersDigest feeds arbitrary bytes to the offers digest decoder
+// (one part whose digest is data, with a valid section check): a result
+// or an error, never a panic.
+func FuzzOffersDigest(f *testing.F) {
+	f.Add([]byte{0})
+	f.Add(appendOfferDigest([]byte{1}, "EUR", "[[1,0.32],[100,0.21]]"))
+	f.Add(appendOfferDigest(appendOfferDigest([]byte{2}, "USD", "[]"), "", "[[10,1e300]]"))
+	f.Add([]byte{5, 3, 'E', 'U'})
+	f.Fuzz(func(t *testing.T, data []byte) {
+		sec := binary.LittleEndian.AppendUint32(nil, uint32(len(data)))
+		sec = append(sec, data...)
+		cs := &ColumnSet{ID: []int64{1}, Ord: []uint32{0}, offSec: sec, offSum: checksum(sec),
+			mpnEnds: binary.LittleEndian.AppendUint32(nil, 2), mpnBlob: "P1"}
+		offs, err := cs.Offers(0)
+		if err != nil {
+			return
+		}
+		if len(offs) > len(data) {
+			t.Fatalf("%d offers from %d bytes", len(offs), len(data))
+		}
+	})
 }

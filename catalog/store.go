@@ -65,9 +65,12 @@ func (s *Store) notify(format string, args ...any) {
 func dsn(path string) string {
 	u := url.URL{Scheme: "file", Opaque: (&url.URL{Path: path}).EscapedPath()}
 	q := "_pragma=busy_timeout(" + strconv.FormatInt(busyTimeout.Milliseconds(), 10) + ")" +
-		"&_pragma=journal_mode(WAL)&_pragma=foreign_keys(1)&_pragma=synchronous(NORMAL)&_pragma=cache_size(-65536)&_pragma=journal_size_limit(67108864)&_txlock=immediate"
+		"&_pragma=journal_mode(WAL)&_pragma=foreign_keys(1)&_pragma=synchronous(NORMAL)&_pragma=cache_size(-" + strconv.Itoa(storeCacheKiB) + ")&_pragma=journal_size_limit(67108864)&_txlock=immediate"
 	return u.String() + "?" + q
 }
+
+// storeCacheKiB is the page cache of each connection (KiB).
+const storeCacheKiB = 65536
 
 var sqliteMagic = []byte("SQLite format 3\x00")
 

@@ -4,7 +4,9 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"path/filepath"
+	"runtime"
 	"testing"
 
 	"partsieve/catalog"
@@ -47,11 +49,26 @@ func synthStore(t *testing.T, n int) *catalog.Store {
 // TestPickColumnsEqualsSQL checks that Pick through the catalog's column
 // file gives exactly the result of Pick reading the parts in full (same
 // candidates in the same order, same checks and figures, same
-// eliminations), on the seed catalog and on a synthetic one full of ties.
+// eliminations), on the seed catalog and on a synthetic one full of ties;
+// and that splitting the scans and the record building into chunks
+// between processors (forced here on small catalogs: three workers,
+// uneven chunks) changes nothing.
 func TestPickColumnsEqualsSQL(t *testing.T) {
 	ctx := context.Background()
 	stores := map[string]*catalog.Store{"seed": seedCatalog(t), "synth": synthStore(t, 2500)}
+	for _, split := range []bool{false, true} {
+		if split {
+			mc, rc, procs := minChunked, recordChunk, runtime.GOMAXPROCS(3)
+			minChunked, recordChunk = 1, 7
+			defer func() { minChunked, recordChunk = mc, rc; runtime.GOMAXPROCS(procs) }()
+		}
+		pickColumnsEqualsSQL(t, ctx, stores, split)
+	}
+}
+
+func pickColumnsEqualsSQL(t *testing.T, ctx context.Context, stores map[string]*catalog.Store, split bool) {
 	for name, st := range stores {
+		name := fmt.Sprintf("%s (split %v)", name, split)
 		for _, sp := range seeddata.SpecNames() {
 			s := exampleSpec(t, sp)
 			for _, opt := range []Options{{}, {Rank: RankMargin, Top: 12}, {Top: 3, Topologies: []Topology{PFETHigh, ShuntFuse}}} {

@@ -267,7 +267,7 @@ func (e *engine) fuse(f *fuseRec, c *checker) (m metrics) {
 		return
 	}
 	k := pr.FuseContinuousFactor(f.std, f.in)
-	kt, fromDef, outside := pr.RerateFactor(f.rerate, s.Ambient.TMax)
+	kt, fromDef, outside := pr.RerateFactor(f.rerateCurve(), s.Ambient.TMax)
 	if !c.add(fuCurrent, i, k*kt*f.in) {
 		return
 	}

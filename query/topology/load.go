@@ -4,7 +4,9 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"maps"
 	"math"
+	"runtime"
 	"runtime/debug"
 	"slices"
 	"strings"
@@ -303,9 +305,11 @@ func (pf *prefilter) numConds(cs *catalog.ColumnSet) ([]numCond, error) {
 // catalog's columns: the pre-filters are applied to the columns in
 // memory, the parts that pass become light parts with their records, and
 // the full parts of those shown are read later from the same view. The
-// result equals load's (same parts, same eliminations).
-func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Options) (c *Catalog, pre map[Topology][]Elimination, restoreGC func(), err error) {
-	restoreGC = func() {}
+// result equals load's (same parts, same eliminations). done restores
+// the collector and releases the column file: call it when the pick is
+// over (the Zeners' offers are read from the file on demand).
+func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Options) (c *Catalog, pre map[Topology][]Elimination, done func(), err error) {
+	done = func() {}
 	pfs := wantedPrefilters(s, opt)
 	cols, err := view.Columns(ctx, func(k catalog.Kind, typ string) bool {
 		for i := range pfs {
@@ -316,9 +320,8 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 		return false
 	})
 	if err != nil {
-		return nil, nil, restoreGC, err
+		return nil, nil, done, err
 	}
-	defer cols.Close() // the records below copy what they need
 	// From here the pick allocates its working set (records, then the
 	// evaluation's arrays; about 300 MB at a million parts, measured) in one go and
 	// drops it at the end: collections while it grows would only trace it
@@ -329,7 +332,8 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 	lim := debug.SetMemoryLimit(-1)
 	gc := debug.SetGCPercent(-1)
 	debug.SetMemoryLimit(min(lim, pickMemoryLimit))
-	restoreGC = func() {
+	done = func() {
+		cols.Close()
 		debug.SetGCPercent(gc)
 		debug.SetMemoryLimit(lim)
 	}
@@ -344,7 +348,7 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 			if pf.setMatch(cs.Kind, cs.Type) {
 				c, err := pf.numConds(cs)
 				if err != nil {
-					return nil, nil, restoreGC, err
+					return nil, nil, done, err
 				}
 				conds = append(conds, c)
 			}
@@ -400,12 +404,15 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 			c.skipped += len(keep[si])
 		}
 	}
-	// the roles are built in parallel (each writes its own slice)
+	// each role's rows in canonical order (a merge of its sets by Ord),
+	// the roles in parallel; zloc, the Zeners' rows, serves their offers
+	locs := make([][]colLoc, len(roles))
 	var wg sync.WaitGroup
 	for r, sets := range roles {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			out := make([]colLoc, 0, nr[r])
 			pos := make([]int, len(sets))
 			for {
 				best, bestOrd := -1, uint32(0)
@@ -419,39 +426,107 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 				if best < 0 {
 					break
 				}
-				si := sets[best]
-				cs := cols.Sets[si]
-				i := int(keep[si][pos[best]])
+				out = append(out, colLoc{set: int32(sets[best]), row: keep[sets[best]][pos[best]]})
 				pos[best]++
-				src := colNums{cols: &rcs[si], i: i}
-				mpn := cs.MPN(i)
-				id := cs.ID[i]
-				switch r {
-				case roleDiode, roleZener:
-					d := newDiodeRec(nil, mpn, cs.Type, src)
-					d.cid = id
-					if r == roleDiode {
-						c.diodes = append(c.diodes, d)
-					} else {
-						c.zeners = append(c.zeners, d)
-					}
-				case roleFuse:
-					f := newFuseRec(nil, mpn, cs.FuseStd(i), cs.Rerate(i), src)
-					f.cid = id
-					c.fuses = append(c.fuses, f)
-				default:
-					t := newFETRec(nil, mpn, src)
-					t.cid = id
-					if r == rolePFET {
-						c.pfets = append(c.pfets, t)
-					} else {
-						c.nfets = append(c.nfets, t)
+			}
+			locs[r] = out
+		}()
+	}
+	wg.Wait()
+	zloc := locs[roleZener]
+	// then the records, in chunks shared out between the processors (the
+	// largest role alone would otherwise set the time)
+	c.diodes, c.zeners = c.diodes[:len(locs[roleDiode])], c.zeners[:len(locs[roleZener])]
+	c.fuses = c.fuses[:len(locs[roleFuse])]
+	c.pfets, c.nfets = c.pfets[:len(locs[rolePFET])], c.nfets[:len(locs[roleNFET])]
+	type task struct{ r, lo, hi int }
+	var tasks []task
+	for r := range locs {
+		for lo := 0; lo < len(locs[r]); lo += recordChunk {
+			tasks = append(tasks, task{r, lo, min(lo+recordChunk, len(locs[r]))})
+		}
+	}
+	next := make(chan task, len(tasks))
+	for _, t := range tasks {
+		next <- t
+	}
+	close(next)
+	for range runtime.GOMAXPROCS(0) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			texts := fuseTextCache{}
+			for t := range next {
+				for k := t.lo; k < t.hi; k++ {
+					l := locs[t.r][k]
+					si, i := int(l.set), int(l.row)
+					cs := cols.Sets[si]
+					src := colNums{cols: &rcs[si], i: i}
+					switch t.r {
+					case roleDiode, roleZener:
+						d := newDiodeRec(nil, cs.MPN(i), cs.Type, src)
+						d.cid = cs.ID[i]
+						if t.r == roleDiode {
+							c.diodes[k] = d
+						} else {
+							c.zeners[k] = d
+						}
+					case roleFuse:
+						f := newFuseRecTexts(nil, cs.MPN(i), texts.get(cs.FuseStd(i), cs.Rerate(i)), src)
+						f.cid = cs.ID[i]
+						c.fuses[k] = f
+					default:
+						ft := newFETRec(nil, cs.MPN(i), src)
+						ft.cid = cs.ID[i]
+						if t.r == rolePFET {
+							c.pfets[k] = ft
+						} else {
+							c.nfets[k] = ft
+						}
 					}
 				}
 			}
 		}()
 	}
 	wg.Wait()
+	// ties between Zeners are broken on cost: their offers come from the
+	// column file (thousands of rows can tie in a large catalog, and
+	// reading their offers through SQLite cost 0.4–1 s at a million parts)
+	var zat map[int64]int32
+	c.lazy.offers = func(ids []int64) (map[int64][]catalog.Offer, error) {
+		if zat == nil {
+			zat = make(map[int64]int32, len(c.zeners))
+			for i := range c.zeners {
+				zat[c.zeners[i].cid] = int32(i)
+			}
+		}
+		out := make(map[int64][]catalog.Offer, len(ids))
+		var rest []int64
+		for _, id := range ids {
+			i, ok := zat[id]
+			if !ok {
+				rest = append(rest, id)
+				continue
+			}
+			l := zloc[i]
+			offs, err := cols.Sets[l.set].Offers(int(l.row))
+			if err != nil { // a damaged section: SQLite has them
+				rest = append(rest, id)
+				continue
+			}
+			if len(offs) > 0 {
+				out[id] = offs
+			}
+		}
+		if len(rest) > 0 {
+			m, err := view.Offers(ctx, rest)
+			if err != nil {
+				return nil, err
+			}
+			maps.Copy(out, m)
+		}
+		return out, nil
+	}
 	pre = map[Topology][]Elimination{}
 	for k := range pfs {
 		pf := &pfs[k]
@@ -464,8 +539,16 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 			}
 		}
 	}
-	return c, pre, restoreGC, nil
+	return c, pre, done, nil
 }
+
+// colLoc is a row of a column set.
+type colLoc struct{ set, row int32 }
+
+// recordChunk is how many records a worker builds at a time (a tool
+// choice: large enough to keep the hand-out cheap, small enough to
+// share a role between processors). A variable for tests.
+var recordChunk = 16384
 
 // The record slices of a Catalog, as NewCatalog sorts parts into them.
 const (
@@ -522,8 +605,8 @@ func pickColumns(ctx context.Context, v viewer, s *spec.Spec, opt Options) (*Res
 		return nil, fmt.Errorf("pick: %w", err)
 	}
 	defer view.Close()
-	cat, pre, restoreGC, err := loadColumns(ctx, view, s, opt.withDefaults())
-	defer restoreGC()
+	cat, pre, done, err := loadColumns(ctx, view, s, opt.withDefaults())
+	defer done()
 	if err != nil {
 		return nil, fmt.Errorf("pick: %w: %w", errColumns, err)
 	}

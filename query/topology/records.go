@@ -343,27 +343,70 @@ type fuseRec struct {
 	rcold     float64
 	std       physics.FuseStd
 	stdKnown  bool
-	rerate    physics.RerateCurve
+	rerate    *physics.RerateCurve // nil when none; shared, not to be changed
 	hasRerate bool
 	rerateBad bool
 }
 
+// rerateCurve returns the fuse's rerating points (none: the empty curve).
+func (f *fuseRec) rerateCurve() physics.RerateCurve {
+	if f.rerate == nil {
+		return physics.RerateCurve{}
+	}
+	return *f.rerate
+}
+
 func newFuseRec(p *catalog.Part, mpn, std, rerate string, src numSource) fuseRec {
-	f := fuseRec{p: p, mpn: mpn, in: src.num(n_in), undc: src.num(n_un_dc), unac: src.num(n_un_ac),
-		breaking: src.num(n_breaking), i2t: src.num(n_i2t), i2tClear: src.num(n_i2t_clear), rcold: src.num(n_rcold)}
+	return newFuseRecTexts(p, mpn, parseFuseTexts(std, rerate), src)
+}
+
+// fuseTexts are a fuse's parsed text fields.
+type fuseTexts struct {
+	std       physics.FuseStd
+	stdKnown  bool
+	rerate    *physics.RerateCurve // shared between the fuses of one text
+	hasRerate bool
+	rerateBad bool
+}
+
+func parseFuseTexts(std, rerate string) fuseTexts {
+	var t fuseTexts
 	if s, err := physics.ParseFuseStd(std); err == nil && std != "" {
-		f.std, f.stdKnown = s, true
+		t.std, t.stdKnown = s, true
 	} else {
-		f.std = physics.FuseUL // the stricter 75 % rule when the convention is unknown
+		t.std = physics.FuseUL // the stricter 75 % rule when the convention is unknown
 	}
 	if strings.TrimSpace(rerate) != "" {
 		if c, err := physics.ParseRerate(rerate); err == nil {
-			f.rerate, f.hasRerate = c, true
+			t.rerate, t.hasRerate = &c, true
 		} else {
-			f.rerateBad = true
+			t.rerateBad = true
 		}
 	}
-	return f
+	return t
+}
+
+// fuseTextCache parses each distinct pair of fuse texts once (a column
+// catalog has few distinct ones over many parts). Not safe for
+// concurrent use.
+type fuseTextCache map[[2]string]fuseTexts
+
+func (c fuseTextCache) get(std, rerate string) fuseTexts {
+	k := [2]string{std, rerate}
+	t, ok := c[k]
+	if !ok {
+		t = parseFuseTexts(std, rerate)
+		if len(c) < 1<<12 {
+			c[k] = t
+		}
+	}
+	return t
+}
+
+func newFuseRecTexts(p *catalog.Part, mpn string, t fuseTexts, src numSource) fuseRec {
+	return fuseRec{p: p, mpn: mpn, in: src.num(n_in), undc: src.num(n_un_dc), unac: src.num(n_un_ac),
+		breaking: src.num(n_breaking), i2t: src.num(n_i2t), i2tClear: src.num(n_i2t_clear), rcold: src.num(n_rcold),
+		std: t.std, stdKnown: t.stdKnown, rerate: t.rerate, hasRerate: t.hasRerate, rerateBad: t.rerateBad}
 }
 
 // clearing returns the fuse's total-clearing I²t (A²s): the maker's

@@ -59,49 +59,69 @@ func (e *engine) runShunt() TopologyResult {
 	tr := TopologyResult{Topology: ShuntFuse, Title: ShuntFuse.Title(),
 		Evaluated: map[string]int{"fuse": len(e.cat.fuses), "shunt-diode": len(e.cat.diodes)}}
 	var counts [numChecks]int
-	var c checker
 
-	fs := hugeMake[fuseS](len(e.cat.fuses))
-	for i := range e.cat.fuses {
-		c.reset(false, s.Ambient.TMax)
-		m := e.fuse(&e.cat.fuses[i], &c)
-		if c.failed {
-			counts[c.first]++
-			continue
-		}
-		fs = append(fs, fuseS{idx: i, m: m, margin: c.minMargin, marginID: c.minID})
-	}
-	vrev, vrm := s.Supply.VReverse, s.Load.VReverseMax
-	ds := hugeMake[shuntD](len(e.cat.diodes))
-	tpMin := math.Inf(1)
-	for i := range e.cat.diodes {
-		d := &e.cat.diodes[i]
-		c.reset(false, s.Ambient.TMax)
-		m := e.shuntDiode(d, &c)
-		if c.failed {
-			counts[c.first]++
-			continue
-		}
-		fm, ok := e.forward(d)
-		if !ok || !has(m.cap) {
-			counts[shSurgeData]++
-			continue
-		}
-		x := shuntD{idx: i, fm: fm, m: m, margin: c.minMargin, marginID: c.minID, rstar: clampThreshold(&fm, vrev, vrm, s.Ambient.TMin)}
-		switch e.opt.Rank {
-		case RankMargin:
-			x.key = -x.margin
-		case RankCost:
-			x.key = e.cost(d.p).unit
-			if math.IsNaN(x.key) {
-				x.key = math.Inf(1)
+	// fuses and diodes are checked on their own in parallel chunks (each
+	// with its own engine: the engines' caches are not shared), each
+	// chunk compacting its survivors at its start; the chunks are then
+	// joined in order, so the result does not depend on the split
+	fs := hugeMake[fuseS](len(e.cat.fuses))[:len(e.cat.fuses)]
+	fcnt := e.chunks(len(fs), func(we *engine, lo, hi int, counts *[numChecks]int) int {
+		var c checker
+		k := lo
+		for i := lo; i < hi; i++ {
+			c.reset(false, s.Ambient.TMax)
+			m := we.fuse(&we.cat.fuses[i], &c)
+			if c.failed {
+				counts[c.first]++
+				continue
 			}
-		default:
-			x.key = m.extra
+			fs[k] = fuseS{idx: i, m: m, margin: c.minMargin, marginID: c.minID}
+			k++
 		}
-		tpMin = math.Min(tpMin, d.ifsmT)
-		ds = append(ds, x)
+		return k - lo
+	}, &counts)
+	fs = joinChunks(fs, fcnt)
+	vrev, vrm := s.Supply.VReverse, s.Load.VReverseMax
+	ds := hugeMake[shuntD](len(e.cat.diodes))[:len(e.cat.diodes)]
+	dcnt := e.chunks(len(ds), func(we *engine, lo, hi int, counts *[numChecks]int) int {
+		var c checker
+		k := lo
+		for i := lo; i < hi; i++ {
+			d := &we.cat.diodes[i]
+			c.reset(false, s.Ambient.TMax)
+			m := we.shuntDiode(d, &c)
+			if c.failed {
+				counts[c.first]++
+				continue
+			}
+			fm, ok := we.forward(d)
+			if !ok || !has(m.cap) {
+				counts[shSurgeData]++
+				continue
+			}
+			x := shuntD{idx: i, fm: fm, m: m, margin: c.minMargin, marginID: c.minID, rstar: clampThreshold(&fm, vrev, vrm, s.Ambient.TMin)}
+			switch we.opt.Rank {
+			case RankMargin:
+				x.key = -x.margin
+			case RankCost:
+				x.key = we.cost(d.p).unit
+				if math.IsNaN(x.key) {
+					x.key = math.Inf(1)
+				}
+			default:
+				x.key = m.extra
+			}
+			ds[k] = x
+			k++
+		}
+		return k - lo
+	}, &counts)
+	ds = joinChunks(ds, dcnt)
+	tpMin := math.Inf(1)
+	for i := range ds {
+		tpMin = math.Min(tpMin, e.cat.diodes[ds[i].idx].ifsmT)
 	}
+	var c checker
 	// positions: diodes by rising capability (ds itself is not moved);
 	// sorting small (value, index) records keeps the sorts cheap
 	n := len(ds)
