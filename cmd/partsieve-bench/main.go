@@ -105,6 +105,10 @@ func parent(dir string, keep bool, rows, xrows int, seed uint64, reps int) error
 	peak := map[string]float64{}
 	phases := []string{"gen", "import", "sqlite3", "sqlite3-keyed", "bleve", "xlsx", "find", "pick"}
 	for _, ph := range phases {
+		// the files earlier phases wrote (a gigabyte and more) are
+		// flushed first, so that their write-back does not run beside
+		// the phase being timed
+		syscall.Sync()
 		fmt.Fprintf(os.Stderr, "%s  phase %s ...\n", time.Now().Format("15:04:05"), ph)
 		cmd := exec.Command(self, "-phase", ph, "-dir", dir, "-rows", fmt.Sprint(rows),
 			"-xlsx-rows", fmt.Sprint(xrows), "-seed", fmt.Sprint(seed), "-reps", fmt.Sprint(reps))

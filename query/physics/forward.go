@@ -116,12 +116,12 @@ type ForwardData struct {
 	VF, IF, TJ float64
 	// Has2 says whether a second point VF2 at IF2, TJ2 exists.
 	Has2          bool
+	TCOverride    bool // see TC
 	VF2, IF2, TJ2 float64
 	// TC is the temperature coefficient (V/K) used when the data do not give
 	// one; 0 means the class default (DefaultTC). With TCOverride it is used
 	// even when the data give a coefficient (a user override; 0 is allowed).
-	TC         float64
-	TCOverride bool
+	TC float64
 }
 
 // ForwardModel gives the forward voltage V_F(I, T_j) of a diode and its

@@ -40,11 +40,11 @@ type LeakageData struct {
 	IR, VR, TJ float64
 	// Has2 says whether a second point IR2 at TJ2 (same test voltage) exists.
 	Has2     bool
+	Override bool // see DoublingK
 	IR2, TJ2 float64
 	// DoublingK is the doubling interval (K) used without a second point;
 	// 0 means DefaultLeakageDoubling. With Override it wins over the data.
 	DoublingK float64
-	Override  bool
 }
 
 // Leakage is the reverse-leakage model (REFERENCE §1.4) [V form; slope D/M]:

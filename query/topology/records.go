@@ -264,6 +264,8 @@ type diodeRec struct {
 	mpn      string // part number (ties are broken on it)
 	class    physics.DiodeClass
 	schottky bool
+	fwdOK    bool
+	leakOK   bool
 	vrrm     float64
 	ifav     float64
 	ifsm     float64
@@ -274,9 +276,7 @@ type diodeRec struct {
 	vz       float64
 	vzTol    float64
 	fwd      physics.ForwardData
-	fwdOK    bool
 	leak     physics.LeakageData
-	leakOK   bool
 }
 
 func newDiodeRec(p *catalog.Part, mpn, typ string, src numSource) diodeRec {

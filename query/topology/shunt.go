@@ -1,10 +1,8 @@
 package topology
 
 import (
-	"cmp"
 	"fmt"
 	"math"
-	"slices"
 	"sort"
 
 	"partsieve/query/physics"
@@ -122,55 +120,40 @@ func (e *engine) runShunt() TopologyResult {
 		tpMin = math.Min(tpMin, e.cat.diodes[ds[i].idx].ifsmT)
 	}
 	var c checker
-	// positions: diodes by rising capability (ds itself is not moved);
-	// sorting small (value, index) records keeps the sorts cheap
-	n := len(ds)
-	type rec struct {
-		v   float64
-		tie int
-		i   int32
-	}
-	byCap := make([]rec, n)
-	for i := range ds {
-		byCap[i] = rec{ds[i].m.cap, ds[i].idx, int32(i)}
-	}
-	slices.SortFunc(byCap, func(a, b rec) int {
-		if c := cmp.Compare(a.v, b.v); c != 0 {
-			return c
+	// fuses by rising external resistance, sorted beside the diodes
+	byRext := make([]keyed, len(fs))
+	fuseSorted := make(chan struct{})
+	go func() {
+		defer close(fuseSorted)
+		for k := range fs {
+			rc := e.cat.fuses[fs[k].idx].rcold
+			if !has(rc) {
+				rc = 0
+			}
+			byRext[k] = keyed{s.Supply.RSource + rc, fs[k].idx, int32(k)}
 		}
-		return cmp.Compare(a.tie, b.tie)
-	})
+		sortKeyed(byRext)
+	}()
+	// positions: diodes by rising capability (ds itself is not moved);
+	// sorting small (value, tie, index) records keeps the sorts cheap
+	n := len(ds)
+	byCap := make([]keyed, n)
+	for i := range ds {
+		byCap[i] = keyed{ds[i].m.cap, ds[i].idx, int32(i)}
+	}
+	sortKeyed(byCap)
 	perm := make([]int32, n)
 	caps := make([]float64, n)
 	keys, ties := make([]float64, n), make([]int, n)
-	byR := make([]rec, n) // positions by rising R*
+	byR := make([]keyed, n) // positions by rising R*
 	for p, r := range byCap {
 		i := r.i
 		perm[p], caps[p], keys[p], ties[p] = i, ds[i].m.cap, ds[i].key, ds[i].idx
-		byR[p] = rec{ds[i].rstar, p, int32(p)}
+		byR[p] = keyed{ds[i].rstar, p, int32(p)}
 	}
-	slices.SortFunc(byR, func(a, b rec) int {
-		if c := cmp.Compare(a.v, b.v); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.tie, b.tie)
-	})
+	sortKeyed(byR)
 	tree := newBestK(n, e.opt.PairsPerFuse, keys, ties)
-	// fuses by rising external resistance
-	byRext := make([]rec, len(fs))
-	for k := range fs {
-		rc := e.cat.fuses[fs[k].idx].rcold
-		if !has(rc) {
-			rc = 0
-		}
-		byRext[k] = rec{s.Supply.RSource + rc, fs[k].idx, int32(k)}
-	}
-	slices.SortFunc(byRext, func(a, b rec) int {
-		if c := cmp.Compare(a.v, b.v); c != 0 {
-			return c
-		}
-		return cmp.Compare(a.tie, b.tie)
-	})
+	<-fuseSorted
 
 	pairs := topN{e: e, n: e.opt.Top}
 	var tmp []cand
