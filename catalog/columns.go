@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"os"
 	"path/filepath"
@@ -428,6 +429,36 @@ func (s *Store) RefreshColumns(ctx context.Context) error {
 		return errors.New("the column file could not be saved")
 	}
 	return nil
+}
+
+// ColumnFileState says whether the column file reflects the catalog:
+// "current", "missing", "stale" (it reflects another state of the
+// catalog, or its directory is unreadable) or "damaged" (a section fails
+// its check). The file is a cache: in the last three cases the next pick
+// rebuilds it (or `partsieve catalog reindex` does).
+func (s *Store) ColumnFileState(ctx context.Context) (string, error) {
+	v, err := s.View(ctx)
+	if err != nil {
+		return "", err
+	}
+	defer v.Close()
+	if _, err := os.Stat(s.colsPath()); errors.Is(err, fs.ErrNotExist) {
+		return "missing", nil
+	}
+	if _, err := readColumnsHeader(s.colsPath(), v.st); err != nil {
+		return "stale", nil
+	}
+	c, err := readColumns(s.colsPath(), v.st, nil)
+	if err != nil {
+		return "damaged", nil
+	}
+	defer c.Close()
+	for _, cs := range c.Sets {
+		if cs.openOffers() != nil {
+			return "damaged", nil
+		}
+	}
+	return "current", nil
 }
 
 // refreshColumnsAfterChange brings the column file up to date after a

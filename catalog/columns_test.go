@@ -438,3 +438,54 @@ func FuzzOffersDigest(f *testing.F) {
 		}
 	})
 }
+
+// TestColumnFileState checks what `catalog check` reports of the column
+// file: current after an import, stale when it reflects an older state,
+// damaged when a section fails its check, missing when deleted.
+func TestColumnFileState(t *testing.T) {
+	ctx := context.Background()
+	s := openTemp(t)
+	ps := sampleParts()
+	state := func() string {
+		t.Helper()
+		st, err := s.ColumnFileState(ctx)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return st
+	}
+	importParts(t, s, "a", ps[:3]...)
+	if got := state(); got != "current" {
+		t.Fatalf("after an import: %s, want current", got)
+	}
+	old, err := os.ReadFile(s.colsPath())
+	if err != nil {
+		t.Fatal(err)
+	}
+	importParts(t, s, "b", ps[3:]...)
+	if got := state(); got != "current" {
+		t.Fatalf("after a second import: %s, want current", got)
+	}
+	good, err := os.ReadFile(s.colsPath())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(s.colsPath(), old, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if got := state(); got != "stale" {
+		t.Errorf("with the file of the first import: %s, want stale", got)
+	}
+	bad := slices.Clone(good)
+	bad[len(colsMagic)+3] ^= 0x01 // inside the first set's ids
+	if err := os.WriteFile(s.colsPath(), bad, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if got := state(); got != "damaged" {
+		t.Errorf("with a flipped bit: %s, want damaged", got)
+	}
+	os.Remove(s.colsPath())
+	if got := state(); got != "missing" {
+		t.Errorf("deleted: %s, want missing", got)
+	}
+}

@@ -168,7 +168,7 @@ func newCatalogReindexCmd(a *app) *cobra.Command {
 func newCatalogCheckCmd(a *app) *cobra.Command {
 	return &cobra.Command{
 		Use:   "check",
-		Short: "Check the catalog's integrity and the text index against it",
+		Short: "Check the catalog's integrity and the text index against it; tell the column file's state",
 		Args:  args(cobra.NoArgs),
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			st, err := a.open(cmd.Context())
@@ -180,10 +180,21 @@ func newCatalogCheckCmd(a *app) *cobra.Command {
 			if err != nil {
 				return err
 			}
+			// the column file is a cache that the next pick rebuilds when
+			// it does not match: its state is told, never a problem
+			cols := "column file: unreadable catalog, not checked"
+			if state, err := st.ColumnFileState(cmd.Context()); err == nil {
+				cols = "column file: " + state
+				if state != "current" {
+					cols += " (the next pick rebuilds it, or run 'partsieve catalog reindex')"
+				}
+			}
 			if len(problems) == 0 {
 				fmt.Fprintln(a.stdout, "catalog ok: integrity check passed, text index matches the catalog")
+				fmt.Fprintln(a.stdout, cols)
 				return nil
 			}
+			defer fmt.Fprintln(a.stdout, cols)
 			for _, p := range problems {
 				fmt.Fprintln(a.stdout, "problem:", p)
 			}

@@ -218,3 +218,26 @@ func TestFieldsListsHeaderWords(t *testing.T) {
 		}
 	}
 }
+
+// TestCheckTellsColumnFile: `catalog check` tells the column file's state
+// (a cache the next pick rebuilds) without counting it as a problem.
+func TestCheckTellsColumnFile(t *testing.T) {
+	db := newDB(t)
+	out, errs, code := runCLI(t, db, "catalog", "check")
+	if code != 0 || !strings.Contains(out, "catalog ok") || !strings.Contains(out, "column file: current\n") {
+		t.Fatalf("check on the seeded catalog: code %d\n%s%s", code, out, errs)
+	}
+	if err := os.Remove(db + ".cols"); err != nil {
+		t.Fatal(err)
+	}
+	out, errs, code = runCLI(t, db, "catalog", "check")
+	if code != 0 || !strings.Contains(out, "column file: missing (the next pick rebuilds it") {
+		t.Fatalf("check without the column file: code %d\n%s%s", code, out, errs)
+	}
+	if _, _, code := runCLI(t, db, "pick", "vehicle-12v-accessory"); code != 0 {
+		t.Fatalf("pick: code %d", code)
+	}
+	if out, _, _ = runCLI(t, db, "catalog", "check"); !strings.Contains(out, "column file: current\n") {
+		t.Errorf("after a pick the column file is not current:\n%s", out)
+	}
+}
