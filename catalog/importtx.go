@@ -1007,3 +1007,7 @@ func (t *ImportTx) Rollback() error {
 	t.release()
 	return err
 }
+
+// SortKey returns the prepared part's identity key: its normalised part
+// number and maker (NormKey), the order of the catalog's identity index.
+func (pp *Prepared) SortKey() (string, string) { return pp.pk, pp.mk }

@@ -1,6 +1,11 @@
 package importers
 
-import "partsieve/catalog"
+import (
+	"slices"
+	"strings"
+
+	"partsieve/catalog"
+)
 
 // rowItem is one data row on its way from the reading goroutine to the
 // writing one: a converted part (with the catalog's checks done when a
@@ -13,11 +18,18 @@ type rowItem struct {
 	rej  *rowReject       // the row was refused while converting
 }
 
-// Pipe sizes: rows per batch, and batches in flight. A batch of 256
-// converted rows is some 100 KB, so the pipe holds well under 1 MB.
+// Pipe sizes: rows per batch, and batches in flight. The writer puts each
+// batch's parts in the order of the catalog's identity key (see drain):
+// the larger the batch, the closer together its inserts land in that
+// index. Measured at a million rows (paired runs): parts usable 37.7 s
+// unsorted in batches of 256, 33.7 s sorted in batches of 2,048 with one
+// in flight (import peak 257 MB), 32.3 s at 4,096 (320 MB, above the
+// import's 300 MB target), 30.9 s at 8,192 with four in flight (719 MB: a
+// converted row with its part and prepared form is some 5 KB). Tool
+// choice.
 const (
-	pipeBatch = 256
-	pipeDepth = 4
+	pipeBatch = 2048
+	pipeDepth = 1
 )
 
 type rowBatch struct {
@@ -101,14 +113,36 @@ func (p *rowPipe) close() {
 	close(p.full)
 }
 
-// drain runs put on every item in order on the writer's goroutine and
-// returns the first error, of put or of the reader (fail). It returns
-// only after the reader has ended, so nothing reads the sheet afterwards.
+// drain runs put on every item on the writer's goroutine and returns the
+// first error, of put or of the reader (fail). Within a batch, refused
+// rows come first, in row order, then the parts in the order of their
+// identity key (part number, maker; a stable sort, so of two rows with
+// one key the earlier is still put first, and the batches keep their
+// order): inserts next to each other in the identity index cost fewer
+// page reads and writes (see pipeBatch). It returns only after the reader
+// has ended, so nothing reads the sheet afterwards.
 func (p *rowPipe) drain(put func(*rowItem) error) error {
 	var err error
+	var ord []int
+	var keys [][2]string
 	for b := range p.full {
 		if err == nil {
+			ord, keys = ord[:0], keys[:0]
 			for i := range b.items[:b.n] {
+				it := &b.items[i]
+				var k [2]string
+				if it.part != nil && it.perr == nil && it.rej == nil {
+					k[0], k[1] = it.prep.SortKey()
+				}
+				ord, keys = append(ord, i), append(keys, k)
+			}
+			slices.SortStableFunc(ord, func(x, y int) int {
+				if c := strings.Compare(keys[x][0], keys[y][0]); c != 0 {
+					return c
+				}
+				return strings.Compare(keys[x][1], keys[y][1])
+			})
+			for _, i := range ord {
 				if err = put(&b.items[i]); err != nil {
 					break
 				}

@@ -262,3 +262,52 @@ func sheetRun(t *testing.T, ctx context.Context, name string, data []byte, out s
 	_, err = rn.sheet("", tbl)
 	return rn, err
 }
+
+// drain puts each batch's refused rows first, in row order, then its
+// parts in identity-key order (normalised part number, then maker),
+// keeping two rows of one key in row order; batches keep their order.
+func TestDrainSortsBatchByKey(t *testing.T) {
+	p := newRowPipe()
+	var pr catalog.Preparer
+	type in struct {
+		mpn, mfr string
+		refused  bool
+	}
+	batches := [][]in{
+		{{"ZX-2", "Acme", false}, {"", "", true}, {"ab-1", "Zed", false}, {"AB-1", "Alpha", false}, {"ab-1", "zed", false}, {"", "", true}, {"M7", "Acme", false}},
+		{{"A0", "Acme", false}},
+	}
+	row := 2
+	go func() {
+		defer p.close()
+		for _, b := range batches {
+			for _, x := range b {
+				it := p.item()
+				it.row = row
+				row++
+				if x.refused {
+					it.rej = &rowReject{column: "V_RRM", reason: "not a number"}
+					continue
+				}
+				it.part = &catalog.Part{Kind: catalog.Diode, Type: "schottky", Mfr: x.mfr, MPN: x.mpn}
+				if err := pr.Prepare(it.part, &it.prep); err != nil {
+					t.Error(err)
+				}
+			}
+			p.send()
+		}
+	}()
+	var got []int
+	if err := p.drain(func(it *rowItem) error {
+		got = append(got, it.row)
+		return nil
+	}); err != nil {
+		t.Fatal(err)
+	}
+	// rows 2..8 in the first batch: refused 3 and 7, then AB-1/Alpha (5),
+	// ab-1/Zed (4) before ab-1/zed (6, same key, later row), M7 (8), ZX-2 (2)
+	want := []int{3, 7, 5, 4, 6, 8, 2, 9}
+	if fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Errorf("put order %v, want %v", got, want)
+	}
+}
