@@ -498,6 +498,11 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 	// ties go to the lower loss (or cost when ranking by cost), then the
 	// lower part number, then the first in catalog order. Costs are
 	// computed only where needed, after the parts are fetched in one batch.
+	if cap(e.zwin) < len(e.cat.zeners) {
+		// one list for every window (most Zeners can fit a wide one):
+		// grown by appends it would be copied over and over
+		e.zwin = hugeMake[zchoice](len(e.cat.zeners))
+	}
 	win := e.zwin[:0] // reused: a window's list is dropped once chosen
 	for i := range e.cat.zeners {
 		z := &e.cat.zeners[i]

@@ -339,6 +339,9 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 	}
 	// first pass: which rows some pre-filter keeps, and the counts
 	keep := make([][]int32, len(cols.Sets))
+	for si, cs := range cols.Sets {
+		keep[si] = make([]int32, 0, cs.Len()) // pages are touched only as filled
+	}
 	total, have := make([]int, len(pfs)), make([]int, len(pfs))
 	for si, cs := range cols.Sets {
 		var conds [][]numCond

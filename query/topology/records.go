@@ -228,7 +228,9 @@ const (
 
 var numFieldNames = [numFields]string{"vrrm", "ifav", "ifsm", "ifsm_t", "rthja", "tjmax", "pd", "vz", "vz_tol", "vf", "vf_if", "vf_tj", "vf2", "vf2_if", "vf2_tj", "ir", "ir_vr", "ir_tj", "ir2", "ir2_tj", "in", "un_dc", "un_ac", "breaking", "i2t", "i2t_clear", "rcold", "vds", "id", "vgs_max", "vgs_th", "rdson", "rdson_vgs", "rdson2", "rdson2_vgs"}
 
-// numSource gives one part's Number fields; NaN when absent.
+// numSource gives one part's Number fields; NaN when absent. The record
+// constructors take it as a type parameter, so that a column source (a
+// small struct) is not boxed on the heap once per record.
 type numSource interface{ num(f numField) float64 }
 
 // partNums reads a catalog.Part's map.
@@ -279,7 +281,7 @@ type diodeRec struct {
 	leak     physics.LeakageData
 }
 
-func newDiodeRec(p *catalog.Part, mpn, typ string, src numSource) diodeRec {
+func newDiodeRec[S numSource](p *catalog.Part, mpn, typ string, src S) diodeRec {
 	d := diodeRec{
 		p: p, mpn: mpn, class: physics.DiodeClassOf(strings.ToLower(typ)),
 		vrrm: src.num(n_vrrm), ifav: src.num(n_ifav), ifsm: src.num(n_ifsm),
@@ -356,7 +358,7 @@ func (f *fuseRec) rerateCurve() physics.RerateCurve {
 	return *f.rerate
 }
 
-func newFuseRec(p *catalog.Part, mpn, std, rerate string, src numSource) fuseRec {
+func newFuseRec[S numSource](p *catalog.Part, mpn, std, rerate string, src S) fuseRec {
 	return newFuseRecTexts(p, mpn, parseFuseTexts(std, rerate), src)
 }
 
@@ -403,7 +405,7 @@ func (c fuseTextCache) get(std, rerate string) fuseTexts {
 	return t
 }
 
-func newFuseRecTexts(p *catalog.Part, mpn string, t fuseTexts, src numSource) fuseRec {
+func newFuseRecTexts[S numSource](p *catalog.Part, mpn string, t fuseTexts, src S) fuseRec {
 	return fuseRec{p: p, mpn: mpn, in: src.num(n_in), undc: src.num(n_un_dc), unac: src.num(n_un_ac),
 		breaking: src.num(n_breaking), i2t: src.num(n_i2t), i2tClear: src.num(n_i2t_clear), rcold: src.num(n_rcold),
 		std: t.std, stdKnown: t.stdKnown, rerate: t.rerate, hasRerate: t.hasRerate, rerateBad: t.rerateBad}
@@ -438,7 +440,7 @@ type fetRec struct {
 	gateOK bool
 }
 
-func newFETRec(p *catalog.Part, mpn string, src numSource) fetRec {
+func newFETRec[S numSource](p *catalog.Part, mpn string, src S) fetRec {
 	t := fetRec{p: p, mpn: mpn, vds: src.num(n_vds), id: src.num(n_id), vgsMax: src.num(n_vgs_max), vgsTh: src.num(n_vgs_th),
 		rth: src.num(n_rthja), tjmax: src.num(n_tjmax), pd: src.num(n_pd)}
 	r1, v1 := src.num(n_rdson), src.num(n_rdson_vgs)
