@@ -3,8 +3,10 @@ package topology
 import (
 	"bytes"
 	"context"
+	"encoding/binary"
 	"encoding/json"
 	"fmt"
+	"os"
 	"path/filepath"
 	"runtime"
 	"testing"
@@ -105,4 +107,86 @@ func firstDiff(a, b string) string {
 	}
 	lo := max(0, i-300)
 	return "columns: …" + a[lo:min(len(a), i+200)] + "\nSQL:     …" + b[lo:min(len(b), i+200)]
+}
+
+// TestPickColumnsDamagedOffers: when the offers section of the Zeners'
+// column set fails its check, the tied Zeners' offers come from SQLite
+// and the pick is still exactly the SQL pick. The section is found
+// through the file's trailer and directory (layout in catalog/columns.go).
+func TestPickColumnsDamagedOffers(t *testing.T) {
+	ctx := context.Background()
+	st := synthStore(t, 2500)
+	path := st.Path + ".cols"
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	le := binary.LittleEndian
+	tr := data[len(data)-20:]
+	if string(tr[12:]) != "PSCOLEND" {
+		t.Fatalf("no trailer: %q", tr[12:])
+	}
+	dir := data[le.Uint64(tr) : le.Uint64(tr)+uint64(le.Uint32(tr[8:]))]
+	pos := 0
+	str := func() string {
+		n, k := binary.Uvarint(dir[pos:])
+		s := string(dir[pos+k : pos+k+int(n)])
+		pos += k + int(n)
+		return s
+	}
+	u32 := func() uint32 { v := le.Uint32(dir[pos:]); pos += 4; return v }
+	u64 := func() uint64 { v := le.Uint64(dir[pos:]); pos += 8; return v }
+	u64()
+	u64()
+	str()
+	hit := false
+	for range u32() {
+		kind, typ := str(), str()
+		u32()
+		for range u32() {
+			str()
+		}
+		off, length, _, split, _ := u64(), u64(), u64(), u64(), u64()
+		if kind == "diode" && typ == "zener" {
+			if length <= split {
+				t.Fatal("the Zener set has no offers section")
+			}
+			data[off+length-1] ^= 0x5a // the last byte of its offers
+			hit = true
+		}
+	}
+	if !hit {
+		t.Fatal("no Zener set in the column file")
+	}
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if state, err := st.ColumnFileState(ctx); err != nil || state != "damaged" {
+		t.Fatalf("column file state %q (%v), want damaged", state, err)
+	}
+	ties := 0
+	for _, sp := range seeddata.SpecNames() {
+		s := exampleSpec(t, sp)
+		fast, err := Pick(ctx, st, s, Options{})
+		if err != nil {
+			t.Fatalf("%s: %v", sp, err)
+		}
+		slow, err := Pick(ctx, sqlOnly{st}, s, Options{})
+		if err != nil {
+			t.Fatalf("%s: %v", sp, err)
+		}
+		a, _ := json.MarshalIndent(fast, "", " ")
+		b, _ := json.MarshalIndent(slow, "", " ")
+		if !bytes.Equal(a, b) {
+			t.Errorf("%s: column pick with damaged offers differs from the SQL pick:\n%s", sp, firstDiff(string(a), string(b)))
+		}
+		for _, tr := range fast.Topologies {
+			if tr.Topology == PFETHigh || tr.Topology == NFETLow {
+				ties += len(tr.Candidates)
+			}
+		}
+	}
+	if ties == 0 {
+		t.Error("no MOSFET design with a Zener: the offers were never needed")
+	}
 }
