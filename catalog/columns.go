@@ -247,7 +247,7 @@ func (cs *ColumnSet) Offers(i int) ([]Offer, error) {
 		if !ok1 || !ok2 {
 			return nil, errStale
 		}
-		breaks, err := decodeBreaks(br)
+		breaks, err := decodeBreaksFast(br)
 		if err != nil {
 			return nil, fmt.Errorf("price breaks of an offer of part %s: %w", cs.MPN(i), err)
 		}
@@ -429,6 +429,35 @@ func (s *Store) RefreshColumns(ctx context.Context) error {
 		return errors.New("the column file could not be saved")
 	}
 	return nil
+}
+
+// decodeBreaksFast is decodeBreaks for the canonical text the catalog
+// stores ([[qty,price],…]) without encoding/json (a pick ranked by cost
+// decodes every part's breaks); any other shape goes to decodeBreaks.
+// Both read numbers with strconv.ParseFloat, so the values are the same.
+func decodeBreaksFast(s string) ([]PriceBreak, error) {
+	v, err := parseJSON(s)
+	arr, ok := v.([]any)
+	if err != nil || !ok {
+		return decodeBreaks(s)
+	}
+	if len(arr) == 0 {
+		return nil, nil
+	}
+	out := make([]PriceBreak, len(arr))
+	for k, e := range arr {
+		pair, ok := e.([]any)
+		if !ok || len(pair) != 2 {
+			return decodeBreaks(s)
+		}
+		q, ok1 := pair[0].(float64)
+		px, ok2 := pair[1].(float64)
+		if !ok1 || !ok2 {
+			return decodeBreaks(s)
+		}
+		out[k] = PriceBreak{Qty: int64(q), Price: px}
+	}
+	return out, nil
 }
 
 // ColumnFileState says whether the column file reflects the catalog:

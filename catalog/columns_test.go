@@ -489,3 +489,21 @@ func TestColumnFileState(t *testing.T) {
 		t.Errorf("deleted: %s, want missing", got)
 	}
 }
+
+// FuzzDecodeBreaksFast: wherever decodeBreaks (encoding/json) reads a
+// breaks text, the fast reader gives the same breaks.
+func FuzzDecodeBreaksFast(f *testing.F) {
+	for _, s := range []string{"[]", "[[1,0.32],[100,0.21]]", "[[10, 1e-3] , [1000,5E2]]", "[[1]]", "[[1,2,3]]", `[["1",2]]`, "[[1.9,-0]]", "[[9e18,1]]", "null", "[[1,0.1]"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		want, err := decodeBreaks(s)
+		got, err2 := decodeBreaksFast(s)
+		if err != nil {
+			return
+		}
+		if err2 != nil || !slices.Equal(got, want) {
+			t.Fatalf("%q: fast %v (%v), json %v", s, got, err2, want)
+		}
+	})
+}

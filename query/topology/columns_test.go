@@ -73,7 +73,7 @@ func pickColumnsEqualsSQL(t *testing.T, ctx context.Context, stores map[string]*
 		name := fmt.Sprintf("%s (split %v)", name, split)
 		for _, sp := range seeddata.SpecNames() {
 			s := exampleSpec(t, sp)
-			for _, opt := range []Options{{}, {Rank: RankMargin, Top: 12}, {Top: 3, Topologies: []Topology{PFETHigh, ShuntFuse}}} {
+			for _, opt := range []Options{{}, {Rank: RankMargin, Top: 12}, {Rank: RankCost, Top: 7}, {Top: 3, Topologies: []Topology{PFETHigh, ShuntFuse}}} {
 				fast, err := Pick(ctx, st, s, opt)
 				if err != nil {
 					t.Fatalf("%s %s: %v", name, sp, err)

@@ -113,6 +113,15 @@ func breakPrice(b []catalog.PriceBreak, qty int64) (px float64, note string, ok 
 	return 0, "", false
 }
 
+// unitOf returns the unit price of a record's part: from the part when
+// it is in memory, else the price its record carries (Catalog.units).
+func (e *engine) unitOf(p *catalog.Part, unit float64) float64 {
+	if p != nil {
+		return e.cost(p).unit
+	}
+	return unit
+}
+
 func (e *engine) cost(p *catalog.Part) *partCost {
 	if c, ok := e.costs[p]; ok {
 		return c

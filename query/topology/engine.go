@@ -488,7 +488,12 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 		return z
 	}
 	costOf := func(z *diodeRec) float64 {
-		c := e.cost(e.cat.part(z.p, z.cid)).unit
+		var c float64
+		if z.p == nil && e.cat.units {
+			c = z.unit
+		} else {
+			c = e.cost(e.cat.part(z.p, z.cid)).unit
+		}
 		if math.IsNaN(c) {
 			return math.Inf(1)
 		}
@@ -519,7 +524,7 @@ func (e *engine) zenerFor(k zkey) *zchoice {
 		}
 		e.cat.needOffers(ids)
 	}
-	if e.opt.Rank == RankCost {
+	if e.opt.Rank == RankCost && !e.cat.units {
 		fetch(win)
 	}
 	keys := make([]float64, len(win))

@@ -1,6 +1,7 @@
 package topology
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
@@ -182,9 +183,7 @@ func load(ctx context.Context, src Source, s *spec.Spec, opt Options) (*loaded, 
 // the parts they eliminate are counted when src can count its parts),
 // then every remaining part is evaluated with the device models.
 func Pick(ctx context.Context, src Source, s *spec.Spec, opt Options) (*Result, error) {
-	if v, ok := src.(viewer); ok && opt.withDefaults().Rank != RankCost {
-		// ranking by cost needs every qualifying part's offers: that reads
-		// the parts in full through SQL below
+	if v, ok := src.(viewer); ok {
 		r, err := pickColumns(ctx, v, s, opt)
 		if err == nil || ctx.Err() != nil || !errors.Is(err, errColumns) {
 			return r, err
@@ -454,6 +453,25 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 		next <- t
 	}
 	close(next)
+	// ranked by cost, every record carries its unit price, from the
+	// offers in the column file (the ranking compares them all)
+	costs := opt.Rank == RankCost
+	c.units = costs
+	var costMu sync.Mutex
+	var costErr error
+	unitOf := func(cs *catalog.ColumnSet, i int) float64 {
+		if !costs {
+			return math.NaN()
+		}
+		offs, err := cs.Offers(i)
+		if err != nil {
+			costMu.Lock()
+			costErr = cmp.Or(costErr, err)
+			costMu.Unlock()
+			return math.NaN()
+		}
+		return computeCost(&catalog.Part{Offers: offs}, s.Build.Quantity, s.Build.Currency, s.Build.Rates).unit
+	}
 	for range runtime.GOMAXPROCS(0) {
 		wg.Add(1)
 		go func() {
@@ -468,7 +486,7 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 					switch t.r {
 					case roleDiode, roleZener:
 						d := newDiodeRec(nil, cs.MPN(i), cs.Type, src)
-						d.cid = cs.ID[i]
+						d.cid, d.unit = cs.ID[i], unitOf(cs, i)
 						if t.r == roleDiode {
 							c.diodes[k] = d
 						} else {
@@ -476,11 +494,11 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 						}
 					case roleFuse:
 						f := newFuseRecTexts(nil, cs.MPN(i), texts.get(cs.FuseStd(i), cs.Rerate(i)), src)
-						f.cid = cs.ID[i]
+						f.cid, f.unit = cs.ID[i], unitOf(cs, i)
 						c.fuses[k] = f
 					default:
 						ft := newFETRec(nil, cs.MPN(i), src)
-						ft.cid = cs.ID[i]
+						ft.cid, ft.unit = cs.ID[i], unitOf(cs, i)
 						if t.r == rolePFET {
 							c.pfets[k] = ft
 						} else {
@@ -492,6 +510,9 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 		}()
 	}
 	wg.Wait()
+	if costErr != nil {
+		return nil, nil, done, fmt.Errorf("offers in the column file: %w", costErr)
+	}
 	// ties between Zeners are broken on cost: their offers come from the
 	// column file (thousands of rows can tie in a large catalog, and
 	// reading their offers through SQLite cost 0.4–1 s at a million parts)

@@ -23,6 +23,10 @@ type cand struct {
 	marginID  checkID
 	cost      float64
 	costKnown bool
+	// ua, ub: unit prices of a and b from their records, used when ra, rb
+	// (parts not in memory in a column catalog ranked by cost)
+	ua, ub float64
+	ra, rb bool
 }
 
 // topN keeps the n best candidates by engine.less in a heap whose root is
@@ -189,11 +193,18 @@ func (e *engine) less(x, y *cand) bool {
 // not in the catalog and not costed).
 func (e *engine) costOf(x *cand) {
 	sum, known := 0.0, true
-	for _, p := range [2]*catalog.Part{x.pa, x.pb} {
-		if p == nil {
+	for k, p := range [2]*catalog.Part{x.pa, x.pb} {
+		var u float64
+		switch {
+		case p != nil:
+			u = e.cost(p).unit
+		case k == 0 && x.ra:
+			u = x.ua
+		case k == 1 && x.rb:
+			u = x.ub
+		default:
 			continue
 		}
-		u := e.cost(p).unit
 		if math.IsNaN(u) {
 			known = false
 			continue
@@ -296,7 +307,8 @@ func (e *engine) runSeries() TopologyResult {
 			counts[c.first]++
 			continue
 		}
-		top.push(cand{a: i, b: -1, pa: d.p, ma: d.mpn, m: m, margin: c.minMargin, marginID: c.minID})
+		top.push(cand{a: i, b: -1, pa: d.p, ma: d.mpn, m: m, margin: c.minMargin, marginID: c.minID,
+			ua: d.unit, ra: e.cat.units && d.p == nil})
 	}
 	cs := top.sorted()
 	tr.Qualified = top.count
@@ -340,9 +352,11 @@ func (e *engine) runFET(nfet bool) TopologyResult {
 		t := &fets[i]
 		c.reset(false, e.s.Ambient.TMax)
 		m, z := e.fet(t, nfet, &c)
-		x := cand{a: i, b: -1, pa: t.p, ma: t.mpn, z: z, m: m, margin: c.minMargin, marginID: c.minID}
+		x := cand{a: i, b: -1, pa: t.p, ma: t.mpn, z: z, m: m, margin: c.minMargin, marginID: c.minID,
+			ua: t.unit, ra: e.cat.units && t.p == nil}
 		if z != nil {
 			x.pb, x.mb = z.z.p, z.z.mpn
+			x.ub, x.rb = z.z.unit, e.cat.units && z.z.p == nil
 		}
 		if c.failed {
 			counts[c.first]++

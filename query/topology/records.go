@@ -24,6 +24,9 @@ type Catalog struct {
 	// skipped counts parts of a kind whose type is missing or not used by
 	// any topology (TVS diodes).
 	skipped int
+	// units: the records of parts not in memory carry their unit price
+	// (a column catalog picked by cost, whose ranking needs every price)
+	units bool
 
 	// A catalog read from the catalog's columns (Pick on a store) holds
 	// light parts: kind, type, maker, part number and the fuse texts, the
@@ -268,6 +271,7 @@ type diodeRec struct {
 	schottky bool
 	fwdOK    bool
 	leakOK   bool
+	unit     float64 // unit price at the build quantity when Catalog.units
 	vrrm     float64
 	ifav     float64
 	ifsm     float64
@@ -336,6 +340,7 @@ type fuseRec struct {
 	p         *catalog.Part
 	cid       int64
 	mpn       string
+	unit      float64 // unit price at the build quantity when Catalog.units
 	in        float64
 	undc      float64
 	unac      float64
@@ -429,6 +434,7 @@ type fetRec struct {
 	p      *catalog.Part
 	cid    int64
 	mpn    string
+	unit   float64 // unit price at the build quantity when Catalog.units
 	vds    float64
 	id     float64
 	vgsMax float64

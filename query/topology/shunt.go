@@ -102,7 +102,7 @@ func (e *engine) runShunt() TopologyResult {
 			case RankMargin:
 				x.key = -x.margin
 			case RankCost:
-				x.key = we.cost(d.p).unit
+				x.key = we.unitOf(d.p, d.unit)
 				if math.IsNaN(x.key) {
 					x.key = math.Inf(1)
 				}
@@ -203,7 +203,9 @@ func (e *engine) runShunt() TopologyResult {
 					}
 					continue
 				}
-				x := cand{a: f.idx, b: dd.idx, pa: fr.p, pb: e.cat.diodes[dd.idx].p, ma: fr.mpn, mb: e.cat.diodes[dd.idx].mpn, m: pm, margin: c.minMargin, marginID: c.minID}
+				dr := &e.cat.diodes[dd.idx]
+				x := cand{a: f.idx, b: dd.idx, pa: fr.p, pb: dr.p, ma: fr.mpn, mb: dr.mpn, m: pm, margin: c.minMargin, marginID: c.minID,
+					ua: fr.unit, ra: e.cat.units && fr.p == nil, ub: dr.unit, rb: e.cat.units && dr.p == nil}
 				if f.margin < x.margin {
 					x.margin, x.marginID = f.margin, f.marginID
 				}
