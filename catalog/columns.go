@@ -218,8 +218,17 @@ func (cs *ColumnSet) MPN(i int) string {
 // SKU); supplier, SKU, stock and minimum order are not kept here. Valid
 // until the Columns is closed.
 func (cs *ColumnSet) Offers(i int) ([]Offer, error) {
+	offs, _, err := cs.OffersInto(i, nil, nil)
+	return offs, err
+}
+
+// OffersInto is Offers appending to dst, with the price breaks appended
+// to brk (the offers' Breaks point into the returned breaks slice): for a
+// caller that reads many parts' offers one after the other and reuses
+// both buffers.
+func (cs *ColumnSet) OffersInto(i int, dst []Offer, brk []PriceBreak) ([]Offer, []PriceBreak, error) {
 	if err := cs.openOffers(); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	start := uint32(0)
 	if i > 0 {
@@ -228,35 +237,123 @@ func (cs *ColumnSet) Offers(i int) ([]Offer, error) {
 	b := cs.offBlob[start:binary.LittleEndian.Uint32(cs.offEnds[4*i:])]
 	cnt, k := binary.Uvarint(b)
 	if k <= 0 || cnt > uint64(len(b)) {
-		return nil, errStale
+		return nil, nil, errStale
 	}
 	b = b[k:]
-	text := func() (string, bool) {
+	text := func() ([]byte, bool) {
 		l, k := binary.Uvarint(b)
 		if k <= 0 || l > uint64(len(b)-k) {
-			return "", false
+			return nil, false
 		}
-		t := string(b[k : k+int(l)])
+		t := b[k : k+int(l)]
 		b = b[k+int(l):]
 		return t, true
 	}
-	out := make([]Offer, 0, cnt)
+	// the breaks of all offers go into brk first; the offers take their
+	// slices after, as appending may move brk
+	type span struct{ lo, hi int }
+	var spans [8]span
+	sp := spans[:0]
+	first := len(dst)
 	for range cnt {
 		cur, ok1 := text()
 		br, ok2 := text()
 		if !ok1 || !ok2 {
-			return nil, errStale
+			return nil, nil, errStale
 		}
-		breaks, err := decodeBreaksFast(br)
-		if err != nil {
-			return nil, fmt.Errorf("price breaks of an offer of part %s: %w", cs.MPN(i), err)
+		lo := len(brk)
+		var ok bool
+		if brk, ok = appendCanonicalBreaks(brk, br); !ok {
+			breaks, err := decodeBreaks(string(br))
+			if err != nil {
+				return nil, nil, fmt.Errorf("price breaks of an offer of part %s: %w", cs.MPN(i), err)
+			}
+			brk = append(brk[:lo], breaks...)
 		}
-		out = append(out, Offer{Currency: cur, Breaks: breaks})
+		sp = append(sp, span{lo, len(brk)})
+		dst = append(dst, Offer{Currency: string(cur)})
 	}
 	if len(b) != 0 {
-		return nil, errStale
+		return nil, nil, errStale
 	}
-	return out, nil
+	for k, s := range sp {
+		if s.hi > s.lo {
+			dst[first+k].Breaks = brk[s.lo:s.hi:s.hi]
+		}
+	}
+	return dst, brk, nil
+}
+
+// appendCanonicalBreaks reads price breaks in the text the catalog
+// stores ([[qty,price],…], spaces allowed) without allocating, appending
+// them to dst; ok is false for any other shape (the caller then uses
+// decodeBreaks). Numbers are read with strconv.ParseFloat as encoding/json
+// reads them, so the values are the same.
+func appendCanonicalBreaks(dst []PriceBreak, b []byte) ([]PriceBreak, bool) {
+	s := unsafe.String(unsafe.SliceData(b), len(b)) // read only here
+	i := 0
+	space := func() {
+		for i < len(s) && (s[i] == ' ' || s[i] == '\t' || s[i] == '\n' || s[i] == '\r') {
+			i++
+		}
+	}
+	expect := func(c byte) bool {
+		space()
+		if i < len(s) && s[i] == c {
+			i++
+			return true
+		}
+		return false
+	}
+	number := func() (float64, bool) {
+		space()
+		j := i
+		for i < len(s) {
+			c := s[i]
+			if c == '-' || c == '+' || c == '.' || c == 'e' || c == 'E' || c >= '0' && c <= '9' {
+				i++
+				continue
+			}
+			break
+		}
+		if j == i || s[j] != '-' && (s[j] < '0' || s[j] > '9') {
+			return 0, false
+		}
+		f, err := strconv.ParseFloat(s[j:i], 64)
+		return f, err == nil
+	}
+	n := len(dst)
+	if !expect('[') {
+		return dst[:n], false
+	}
+	if expect(']') {
+		space()
+		return dst, i == len(s)
+	}
+	for {
+		if !expect('[') {
+			return dst[:n], false
+		}
+		q, ok1 := number()
+		if !ok1 || !expect(',') {
+			return dst[:n], false
+		}
+		p, ok2 := number()
+		if !ok2 || !expect(']') {
+			return dst[:n], false
+		}
+		dst = append(dst, PriceBreak{Qty: int64(q), Price: p})
+		if expect(']') {
+			space()
+			if i != len(s) {
+				return dst[:n], false
+			}
+			return dst, true
+		}
+		if !expect(',') {
+			return dst[:n], false
+		}
+	}
 }
 
 // Col returns the column of a Number field, nil when no part of the set
@@ -429,35 +526,6 @@ func (s *Store) RefreshColumns(ctx context.Context) error {
 		return errors.New("the column file could not be saved")
 	}
 	return nil
-}
-
-// decodeBreaksFast is decodeBreaks for the canonical text the catalog
-// stores ([[qty,price],…]) without encoding/json (a pick ranked by cost
-// decodes every part's breaks); any other shape goes to decodeBreaks.
-// Both read numbers with strconv.ParseFloat, so the values are the same.
-func decodeBreaksFast(s string) ([]PriceBreak, error) {
-	v, err := parseJSON(s)
-	arr, ok := v.([]any)
-	if err != nil || !ok {
-		return decodeBreaks(s)
-	}
-	if len(arr) == 0 {
-		return nil, nil
-	}
-	out := make([]PriceBreak, len(arr))
-	for k, e := range arr {
-		pair, ok := e.([]any)
-		if !ok || len(pair) != 2 {
-			return decodeBreaks(s)
-		}
-		q, ok1 := pair[0].(float64)
-		px, ok2 := pair[1].(float64)
-		if !ok1 || !ok2 {
-			return decodeBreaks(s)
-		}
-		out[k] = PriceBreak{Qty: int64(q), Price: px}
-	}
-	return out, nil
 }
 
 // ColumnFileState says whether the column file reflects the catalog:

@@ -490,20 +490,29 @@ func TestColumnFileState(t *testing.T) {
 	}
 }
 
-// FuzzDecodeBreaksFast: wherever decodeBreaks (encoding/json) reads a
-// breaks text, the fast reader gives the same breaks.
-func FuzzDecodeBreaksFast(f *testing.F) {
-	for _, s := range []string{"[]", "[[1,0.32],[100,0.21]]", "[[10, 1e-3] , [1000,5E2]]", "[[1]]", "[[1,2,3]]", `[["1",2]]`, "[[1.9,-0]]", "[[9e18,1]]", "null", "[[1,0.1]"} {
+// FuzzCanonicalBreaks: wherever decodeBreaks (encoding/json) reads a
+// breaks text, the allocation-free reader gives the same breaks (or
+// declines, and the caller falls back to decodeBreaks); it never
+// changes what it was given to append to.
+func FuzzCanonicalBreaks(f *testing.F) {
+	for _, s := range []string{"[]", "[[1,0.32],[100,0.21]]", "[[10, 1e-3] , [1000,5E2]]", "[[1]]", "[[1,2,3]]", `[["1",2]]`, "[[1.9,-0]]", "[[9e18,1]]", "null", "[[1,0.1]", " [ ] ", "[[01,2]]"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
+		pre := []PriceBreak{{7, 0.5}}
+		got, ok := appendCanonicalBreaks(slices.Clone(pre), []byte(s))
+		if !slices.Equal(got[:1], pre) {
+			t.Fatalf("%q: the prefix changed: %v", s, got)
+		}
 		want, err := decodeBreaks(s)
-		got, err2 := decodeBreaksFast(s)
-		if err != nil {
+		if err != nil || !ok {
+			if !ok && len(got) != 1 {
+				t.Fatalf("%q: declined but appended %v", s, got)
+			}
 			return
 		}
-		if err2 != nil || !slices.Equal(got, want) {
-			t.Fatalf("%q: fast %v (%v), json %v", s, got, err2, want)
+		if !slices.Equal(got[1:], want) {
+			t.Fatalf("%q: fast %v, json %v", s, got[1:], want)
 		}
 	})
 }

@@ -459,24 +459,28 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 	c.units = costs
 	var costMu sync.Mutex
 	var costErr error
-	unitOf := func(cs *catalog.ColumnSet, i int) float64 {
+	// unitOf prices row i of cs; pb is the worker's part, its offers and
+	// breaks buffers reused from row to row
+	unitOf := func(cs *catalog.ColumnSet, i int, pb *pricedBuf) float64 {
 		if !costs {
 			return math.NaN()
 		}
-		offs, err := cs.Offers(i)
+		var err error
+		pb.p.Offers, pb.breaks, err = cs.OffersInto(i, pb.p.Offers[:0], pb.breaks[:0])
 		if err != nil {
 			costMu.Lock()
 			costErr = cmp.Or(costErr, err)
 			costMu.Unlock()
 			return math.NaN()
 		}
-		return computeCost(&catalog.Part{Offers: offs}, s.Build.Quantity, s.Build.Currency, s.Build.Rates).unit
+		return computeCost(&pb.p, s.Build.Quantity, s.Build.Currency, s.Build.Rates).unit
 	}
 	for range runtime.GOMAXPROCS(0) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			texts := fuseTextCache{}
+			var pb pricedBuf
 			for t := range next {
 				for k := t.lo; k < t.hi; k++ {
 					l := locs[t.r][k]
@@ -486,7 +490,7 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 					switch t.r {
 					case roleDiode, roleZener:
 						d := newDiodeRec(nil, cs.MPN(i), cs.Type, src)
-						d.cid, d.unit = cs.ID[i], unitOf(cs, i)
+						d.cid, d.unit = cs.ID[i], unitOf(cs, i, &pb)
 						if t.r == roleDiode {
 							c.diodes[k] = d
 						} else {
@@ -494,11 +498,11 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 						}
 					case roleFuse:
 						f := newFuseRecTexts(nil, cs.MPN(i), texts.get(cs.FuseStd(i), cs.Rerate(i)), src)
-						f.cid, f.unit = cs.ID[i], unitOf(cs, i)
+						f.cid, f.unit = cs.ID[i], unitOf(cs, i, &pb)
 						c.fuses[k] = f
 					default:
 						ft := newFETRec(nil, cs.MPN(i), src)
-						ft.cid, ft.unit = cs.ID[i], unitOf(cs, i)
+						ft.cid, ft.unit = cs.ID[i], unitOf(cs, i, &pb)
 						if t.r == rolePFET {
 							c.pfets[k] = ft
 						} else {
@@ -564,6 +568,13 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 		}
 	}
 	return c, pre, done, nil
+}
+
+// pricedBuf is a part holding only offers, and the breaks buffer its
+// offers point into: reused to price one row after another.
+type pricedBuf struct {
+	p      catalog.Part
+	breaks []catalog.PriceBreak
 }
 
 // colLoc is a row of a column set.
