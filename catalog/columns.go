@@ -1348,43 +1348,33 @@ func readColumns(path string, st colStamp, want func(Kind, string) bool) (*Colum
 // in place; elsewhere they are decoded into fresh slices.
 var littleEndian = binary.NativeEndian.Uint16([]byte{1, 0}) == 1
 
-// int64s returns b (8·n bytes) as n little-endian int64s.
-func int64s(b []byte) []int64 {
-	n := len(b) / 8
-	if littleEndian && n > 0 && uintptr(unsafe.Pointer(&b[0]))%8 == 0 {
-		return unsafe.Slice((*int64)(unsafe.Pointer(&b[0])), n)
+// leView returns b as little-endian values of T: in place where the host
+// is little-endian and b suitably aligned, else decoded by dec (a value
+// from its first bytes) into a fresh slice.
+func leView[T int64 | uint32 | float64](b []byte, dec func([]byte) T) []T {
+	size := int(unsafe.Sizeof(*new(T)))
+	n := len(b) / size
+	if littleEndian && n > 0 && uintptr(unsafe.Pointer(&b[0]))%uintptr(size) == 0 {
+		return unsafe.Slice((*T)(unsafe.Pointer(&b[0])), n)
 	}
-	out := make([]int64, n)
+	out := make([]T, n)
 	for i := range out {
-		out[i] = int64(binary.LittleEndian.Uint64(b[8*i:]))
+		out[i] = dec(b[size*i:])
 	}
 	return out
+}
+
+// int64s returns b (8·n bytes) as n little-endian int64s.
+func int64s(b []byte) []int64 {
+	return leView(b, func(b []byte) int64 { return int64(binary.LittleEndian.Uint64(b)) })
 }
 
 // uint32s returns b (4·n bytes) as n little-endian uint32s.
-func uint32s(b []byte) []uint32 {
-	n := len(b) / 4
-	if littleEndian && n > 0 && uintptr(unsafe.Pointer(&b[0]))%4 == 0 {
-		return unsafe.Slice((*uint32)(unsafe.Pointer(&b[0])), n)
-	}
-	out := make([]uint32, n)
-	for i := range out {
-		out[i] = binary.LittleEndian.Uint32(b[4*i:])
-	}
-	return out
-}
+func uint32s(b []byte) []uint32 { return leView(b, binary.LittleEndian.Uint32) }
 
 // float64s returns b (8·n bytes) as n little-endian float64s.
 func float64s(b []byte) []float64 {
-	n := len(b) / 8
-	if littleEndian && n > 0 && uintptr(unsafe.Pointer(&b[0]))%8 == 0 {
-		return unsafe.Slice((*float64)(unsafe.Pointer(&b[0])), n)
-	}
-	out := make([]float64, n)
-	for i := range out {
-		out[i] = math.Float64frombits(binary.LittleEndian.Uint64(b[8*i:]))
-	}
-	return out
+	return leView(b, func(b []byte) float64 { return math.Float64frombits(binary.LittleEndian.Uint64(b)) })
 }
 
 // readSet checks and decodes one set's payload (buf, which starts at an

@@ -516,3 +516,25 @@ func FuzzCanonicalBreaks(f *testing.F) {
 		}
 	})
 }
+
+// TestLEViewMisaligned: a payload that is not aligned for its values is
+// decoded into a fresh slice with the same values as the in-place view.
+func TestLEViewMisaligned(t *testing.T) {
+	want := []float64{1.5, -2e-9, math.Inf(1), 0}
+	raw := make([]byte, 1, 1+8*len(want))
+	for _, v := range want {
+		raw = binary.LittleEndian.AppendUint64(raw, math.Float64bits(v))
+	}
+	aligned := append([]byte(nil), raw[1:]...)
+	for name, b := range map[string][]byte{"misaligned": raw[1:], "aligned": aligned} {
+		if got := float64s(b); !slices.Equal(got, want) {
+			t.Errorf("%s float64s: %v, want %v", name, got, want)
+		}
+		if got := int64s(b); got[1] != int64(math.Float64bits(want[1])) {
+			t.Errorf("%s int64s: %x", name, got[1])
+		}
+		if got := uint32s(b); len(got) != 2*len(want) || got[0] != uint32(math.Float64bits(want[0])) {
+			t.Errorf("%s uint32s: %x", name, got)
+		}
+	}
+}

@@ -156,19 +156,7 @@ func TestFindPlan(t *testing.T) {
 			t.Fatal(err)
 		}
 		stmt, args := fq.build(c.phase, c.q.Limit)
-		rows, err := s.db.Query("EXPLAIN QUERY PLAN "+stmt, args...)
-		if err != nil {
-			t.Fatal(err)
-		}
-		var plan []string
-		for rows.Next() {
-			var id, parent, notused int
-			var detail string
-			rows.Scan(&id, &parent, &notused, &detail)
-			plan = append(plan, detail)
-		}
-		rows.Close()
-		p := strings.Join(plan, "; ")
+		p := queryPlan(t, s, stmt, args...)
 		if !strings.Contains(p, "USING INDEX "+c.index) || strings.Contains(p, "TEMP B-TREE") {
 			t.Errorf("%s\nplan: %s\nwant index %s without temp B-tree", stmt, p, c.index)
 		}

@@ -357,19 +357,7 @@ func TestNoLimitPlansAvoidOrderIndex(t *testing.T) {
 			t.Fatal(err)
 		}
 		stmt, args := fq.build(0, 0)
-		rows, err := s.db.Query("EXPLAIN QUERY PLAN "+stmt, args...)
-		if err != nil {
-			t.Fatal(err)
-		}
-		var plan []string
-		for rows.Next() {
-			var id, parent, notused int
-			var detail string
-			rows.Scan(&id, &parent, &notused, &detail)
-			plan = append(plan, detail)
-		}
-		rows.Close()
-		p := strings.Join(plan, "; ")
+		p := queryPlan(t, s, stmt, args...)
 		if strings.Contains(p, orderIndex) != c.useOrder {
 			t.Errorf("%+v: plan %s", c.q, p)
 		}

@@ -151,3 +151,23 @@ func rawExec(t testing.TB, path, q string) {
 		t.Fatal(err)
 	}
 }
+
+// queryPlan returns SQLite's plan of stmt, its steps joined by "; ".
+func queryPlan(t testing.TB, s *Store, stmt string, args ...any) string {
+	t.Helper()
+	rows, err := s.db.Query("EXPLAIN QUERY PLAN "+stmt, args...)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer rows.Close()
+	var plan []string
+	for rows.Next() {
+		var id, parent, notused int
+		var detail string
+		if err := rows.Scan(&id, &parent, &notused, &detail); err != nil {
+			t.Fatal(err)
+		}
+		plan = append(plan, detail)
+	}
+	return strings.Join(plan, "; ")
+}

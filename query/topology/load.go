@@ -459,9 +459,9 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 	c.units = costs
 	var costMu sync.Mutex
 	var costErr error
-	// unitOf prices row i of cs; pb is the worker's part, its offers and
+	// priceOf prices row i of cs; pb is the worker's part, its offers and
 	// breaks buffers reused from row to row
-	unitOf := func(cs *catalog.ColumnSet, i int, pb *pricedBuf) float64 {
+	priceOf := func(cs *catalog.ColumnSet, i int, pb *pricedBuf) float64 {
 		if !costs {
 			return math.NaN()
 		}
@@ -490,7 +490,7 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 					switch t.r {
 					case roleDiode, roleZener:
 						d := newDiodeRec(nil, cs.MPN(i), cs.Type, src)
-						d.cid, d.unit = cs.ID[i], unitOf(cs, i, &pb)
+						d.cid, d.unit = cs.ID[i], priceOf(cs, i, &pb)
 						if t.r == roleDiode {
 							c.diodes[k] = d
 						} else {
@@ -498,11 +498,11 @@ func loadColumns(ctx context.Context, view *catalog.View, s *spec.Spec, opt Opti
 						}
 					case roleFuse:
 						f := newFuseRecTexts(nil, cs.MPN(i), texts.get(cs.FuseStd(i), cs.Rerate(i)), src)
-						f.cid, f.unit = cs.ID[i], unitOf(cs, i, &pb)
+						f.cid, f.unit = cs.ID[i], priceOf(cs, i, &pb)
 						c.fuses[k] = f
 					default:
 						ft := newFETRec(nil, cs.MPN(i), src)
-						ft.cid, ft.unit = cs.ID[i], unitOf(cs, i, &pb)
+						ft.cid, ft.unit = cs.ID[i], priceOf(cs, i, &pb)
 						if t.r == rolePFET {
 							c.pfets[k] = ft
 						} else {

@@ -59,22 +59,12 @@ func (c *Catalog) need(ids []int64) {
 	}
 	lz.mu.Lock()
 	defer lz.mu.Unlock()
-	var want []int64
-	seen := map[int64]bool{}
-	for _, id := range ids {
-		if lz.full[id] == nil && !seen[id] {
-			seen[id] = true
-			want = append(want, id)
-		}
-	}
+	want := lz.missing(ids, false)
 	if len(want) == 0 {
 		return
 	}
 	got, gotIDs, err := lz.fetch(want)
-	if err != nil {
-		if lz.err == nil {
-			lz.err = err
-		}
+	if lz.keep(err) {
 		return
 	}
 	if lz.full == nil {
@@ -94,22 +84,12 @@ func (c *Catalog) needOffers(ids []int64) {
 	}
 	lz.mu.Lock()
 	defer lz.mu.Unlock()
-	var want []int64
-	seen := map[int64]bool{}
-	for _, id := range ids {
-		if lz.full[id] == nil && lz.priced[id] == nil && !seen[id] {
-			seen[id] = true
-			want = append(want, id)
-		}
-	}
+	want := lz.missing(ids, true)
 	if len(want) == 0 {
 		return
 	}
 	got, err := lz.offers(want)
-	if err != nil {
-		if lz.err == nil {
-			lz.err = err
-		}
+	if lz.keep(err) {
 		return
 	}
 	if lz.priced == nil {
@@ -118,6 +98,29 @@ func (c *Catalog) needOffers(ids []int64) {
 	for _, id := range want {
 		lz.priced[id] = &catalog.Part{Offers: got[id]}
 	}
+}
+
+// missing returns the ids, once each, that are not read in full yet (nor
+// priced, with priced). lz.mu is held.
+func (lz *lazyParts) missing(ids []int64, priced bool) []int64 {
+	var want []int64
+	seen := map[int64]bool{}
+	for _, id := range ids {
+		if lz.full[id] == nil && !(priced && lz.priced[id] != nil) && !seen[id] {
+			seen[id] = true
+			want = append(want, id)
+		}
+	}
+	return want
+}
+
+// keep records the first read error for Pick and reports whether there
+// was one. lz.mu is held.
+func (lz *lazyParts) keep(err error) bool {
+	if err != nil && lz.err == nil {
+		lz.err = err
+	}
+	return err != nil
 }
 
 // part returns the part of a record: p itself in a catalog of full parts,
