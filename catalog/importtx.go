@@ -40,29 +40,42 @@ type ImportTx struct {
 
 	added, updated, unchanged int
 	puts                      int
-	dirty                     bool                // some part or offer changed
-	textIDs                   []int64             // parts whose indexed text is new or changed
-	linkIDs                   []int64             // stored parts met by this import, linked to the source at Commit
-	firstNew, lastNew         int64               // ids of the first and last part added, 0 when none
-	newRange                  bool                // the added parts hold exactly the ids firstNew..lastNew
-	newOffers                 []driver.NamedValue // offers of new parts not yet inserted, offerCols values each
-	partsAtBegin              int64               // max(id) when the import began
-	lastFound                 bool                // the previous Put found its part stored
+	dirty                     bool        // some part or offer changed
+	textIDs                   []int64     // parts whose indexed text is new or changed
+	linkIDs                   []int64     // stored parts met by this import, linked to the source at Commit
+	firstNew, lastNew         int64       // ids of the first and last part added, 0 when none
+	newRange                  bool        // the added parts hold exactly the ids firstNew..lastNew
+	newOffers                 batchInsert // offers of new parts not yet inserted, offerCols values each
+	partsAtBegin              int64       // max(id) when the import began
+	lastFound                 bool        // the previous Put found its part stored
 
 	selPart, updPart              *sql.Stmt
 	selOffers, insOffer, updOffer *sql.Stmt
 	setOfferSrc, linkMany         *sql.Stmt
 	insPart                       map[string]driver.Stmt // by which fields are present
-	insOffers                     map[int]driver.Stmt    // by the number of offers
 	raw                           []driver.Stmt          // every driver statement, closed at the end
 
 	args []any
 	prep Preparer
 	cur  Prepared // reused by Put
+
+	bulk *bulkRows // new parts written a batch at a time; nil when off
 }
 
-// Bulk-load tuning. Offers of new parts are inserted newOfferBatch at a
-// time through one multi-row statement.
+// bulkRows holds the new parts of an import into an empty catalog until
+// they are written together (see bulkrows.go). A part goes this way when
+// the filter of the keys written so far is sure it is new; any other part
+// first flushes the batch, then takes the row-at-a-time path, so every
+// look-up sees every part written before it.
+type bulkRows struct {
+	filter *keyFilter
+	parts  batchInsert // id, mfr_key, mpn_key, then the fields of a row
+	nextID int64       // id of the next new part: ids are max(id)+1, as SQLite assigns them
+}
+
+// Bulk-load tuning. Offers of new parts, and new parts of an import into
+// an empty catalog, are inserted bulkBatch at a time through one
+// INSERT … SELECT from a virtual table over the batch (bulkrows.go).
 //
 // The secondary indexes of parts stay in place during an import. Dropping
 // them for a bulk load and building them again before the commit cost
@@ -75,10 +88,10 @@ type ImportTx struct {
 // narrower rows the rebuild is cheaper (500,000 test parts of genParts:
 // 16 to 19 s against 21 to 22 s), so the balance depends on the rows.
 const (
-	offerCols     = 8 // bound per offer of a new part; the source id is written into the statement
-	newOfferBatch = 100
-	linkBatch     = 50000
-	ctxEvery      = 1024
+	offerCols = 8    // values per offer of a new part; the source id is written into the statement
+	bulkBatch = 2048 // rows per INSERT … SELECT
+	linkBatch = 50000
+	ctxEvery  = 1024
 )
 
 // BeginImport starts the transaction of one import from src (label, file,
@@ -145,6 +158,11 @@ func (t *ImportTx) release() {
 		return
 	}
 	bg := context.Background()
+	if t.bulk != nil {
+		t.dropBatch(&t.bulk.parts)
+		t.bulk = nil
+	}
+	t.dropBatch(&t.newOffers)
 	if len(t.raw) > 0 {
 		t.conn.Raw(func(any) error {
 			for _, st := range t.raw {
@@ -210,10 +228,89 @@ func (t *ImportTx) prepare() error {
 	if err != nil {
 		return err
 	}
-	t.insOffers = map[int]driver.Stmt{}
 	t.args = make([]any, 0, len(Fields)+4)
 	t.insPart = map[string]driver.Stmt{}
 	t.newRange = true
+	srcID := strconv.FormatInt(t.srcID, 10)
+	t.newOffers = batchInsert{batch: rowBatch{ncol: offerCols}, sql: func(table string) string {
+		return `INSERT OR FAIL INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id)
+			SELECT c0, c1, c2, c3, c4, c5, c6, c7, ` + srcID + ` FROM ` + table
+	}}
+	if t.partsAtBegin == 0 && bulkImports {
+		now := strconv.FormatInt(t.now, 10)
+		t.bulk = &bulkRows{filter: newKeyFilter(), nextID: 1, parts: batchInsert{batch: rowBatch{ncol: 3 + len(Fields)}, sql: func(table string) string {
+			// The ids are not written: an id given in the statement makes
+			// SQLite check it is an integer, and that check may abort the
+			// statement half way, so SQLite keeps a statement journal (a
+			// copy of every page the statement changes: 8 of 32 s at a
+			// million parts). SQLite gives each row max(id)+1 in the order
+			// the table yields them, which is the ids handed out; flushBulk
+			// checks the last one.
+			var cols, sel strings.Builder
+			for i, f := range Fields {
+				cols.WriteString(`, "` + colName(f.Name) + `"`)
+				sel.WriteString(", c" + strconv.Itoa(3+i))
+			}
+			return `INSERT OR FAIL INTO parts(mfr_key, mpn_key` + cols.String() + `, created, updated)
+				SELECT c1, c2` + sel.String() + `, ` + now + `, ` + now + ` FROM ` + table
+		}}}
+	}
+	return nil
+}
+
+// bulkImports turns the batched writing of new parts on (a variable so
+// that a test can compare both paths).
+var bulkImports = true
+
+// bulkAdd queues the new part pp (its key is certainly not in the
+// catalog) for the next batch write.
+func (t *ImportTx) bulkAdd(pp *Prepared) (Outcome, []Change, error) {
+	b := t.bulk
+	id := b.nextID
+	b.nextID++
+	b.parts.batch.vals = append(append(b.parts.batch.vals, id, pp.mk, pp.pk), pp.row...)
+	b.filter.add(pp.pk, pp.mk)
+	t.noteNew(id, pp.offers)
+	if t.newOffers.batch.len() >= bulkBatch {
+		if err := t.flushNewOffers(); err != nil {
+			return 0, nil, t.fail(err)
+		}
+	}
+	if b.parts.batch.len() >= bulkBatch {
+		if err := t.flushBulk(); err != nil {
+			return 0, nil, t.fail(err)
+		}
+	}
+	t.lastFound = false
+	return Added, nil, nil
+}
+
+// flushBulk writes the queued new parts in one statement.
+func (t *ImportTx) flushBulk() error {
+	b := t.bulk
+	if b == nil {
+		return nil
+	}
+	n := b.parts.batch.len()
+	if n == 0 {
+		return nil
+	}
+	want := b.parts.batch.vals[(n-1)*b.parts.batch.ncol].(int64)
+	res, err := t.flushBatch(&b.parts)
+	if err != nil {
+		return err
+	}
+	added, err := res.RowsAffected()
+	if err != nil {
+		return err
+	}
+	last, err := res.LastInsertId()
+	if err != nil {
+		return err
+	}
+	if added != int64(n) || last != want {
+		return fmt.Errorf("internal error: %d new parts written with last id %d, expected %d with last id %d", added, last, n, want)
+	}
 	return nil
 }
 
@@ -406,6 +503,14 @@ func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 		}
 	}
 	p, nr, offers, mk, pk := pp.p, pp.row, pp.offers, pp.mk, pp.pk
+	if t.bulk != nil {
+		if !t.bulk.filter.mayHave(pk, mk) {
+			return t.bulkAdd(pp)
+		}
+		if err := t.flushBulk(); err != nil {
+			return 0, nil, t.fail(err)
+		}
+	}
 	// A new part costs one INSERT; an existing one a lookup. Which to try
 	// first follows the previous Put: a new file is mostly new parts, a
 	// re-import mostly known ones, and the wrong guess costs one statement.
@@ -480,7 +585,7 @@ func (t *ImportTx) fail(err error) error {
 
 // lookup reads the stored row of the part with keys pk, mk.
 func (t *ImportTx) lookup(pk, mk string) (id int64, old row, found bool, err error) {
-	if len(t.newOffers) > 0 {
+	if t.newOffers.batch.len() > 0 {
 		// the part may be new in this import with its offers still buffered
 		if err := t.flushNewOffers(); err != nil {
 			return 0, nil, false, t.fail(err)
@@ -519,6 +624,23 @@ func (t *ImportTx) insert(pp *Prepared) (Outcome, error) {
 	if err != nil {
 		return 0, t.fail(err)
 	}
+	if b := t.bulk; b != nil {
+		b.filter.add(pp.pk, pp.mk)
+		b.nextID = id + 1
+	}
+	t.noteNew(id, offers)
+	if t.newOffers.batch.len() >= bulkBatch {
+		if err := t.flushNewOffers(); err != nil {
+			return 0, t.fail(err)
+		}
+	}
+	return Added, nil
+}
+
+// noteNew records the part id just added with its offers: the offers are
+// queued for a batched insert, the id for the provenance links and the
+// text index.
+func (t *ImportTx) noteNew(id int64, offers []offerRow) {
 	switch {
 	case t.firstNew == 0:
 		t.firstNew = id
@@ -539,19 +661,11 @@ func (t *ImportTx) insert(pp *Prepared) (Outcome, error) {
 		if o.stock != nil {
 			stock = *o.stock
 		}
-		for _, v := range [offerCols]any{id, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br} {
-			t.newOffers = appendArg(t.newOffers, v)
-		}
-	}
-	if len(t.newOffers) >= newOfferBatch*offerCols {
-		if err := t.flushNewOffers(); err != nil {
-			return 0, t.fail(err)
-		}
+		t.newOffers.batch.vals = append(t.newOffers.batch.vals, id, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br)
 	}
 	t.added++
 	t.dirty = true
 	t.textIDs = append(t.textIDs, id)
-	return Added, nil
 }
 
 func dupOffer(before []offerRow, o *offerRow) bool {
@@ -563,44 +677,10 @@ func dupOffer(before []offerRow, o *offerRow) bool {
 	return false
 }
 
-// offerInsertSQL is a multi-row INSERT of n offers of source srcID
-// (offerCols values each).
-func offerInsertSQL(n int, srcID int64) string {
-	var b strings.Builder
-	b.WriteString(`INSERT INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id) VALUES `)
-	row := "(?, ?, ?, ?, ?, ?, ?, ?, " + strconv.FormatInt(srcID, 10) + ")"
-	for i := range n {
-		if i > 0 {
-			b.WriteString(", ")
-		}
-		b.WriteString(row)
-	}
-	return b.String()
-}
-
-// flushNewOffers inserts the buffered offers of new parts (t.newOffers
-// holds their values flat, offerCols per offer).
+// flushNewOffers inserts the buffered offers of new parts.
 func (t *ImportTx) flushNewOffers() error {
-	for len(t.newOffers) > 0 {
-		n := min(len(t.newOffers)/offerCols, newOfferBatch)
-		st := t.insOffers[n]
-		if st == nil {
-			var err error
-			if st, err = t.rawPrepare(offerInsertSQL(n, t.srcID)); err != nil {
-				return err
-			}
-			t.insOffers[n] = st
-		}
-		a := t.newOffers[:n*offerCols]
-		for i := range a {
-			a[i].Ordinal = i + 1
-		}
-		if _, err := t.rawExec(st, a); err != nil {
-			return err
-		}
-		t.newOffers = append(t.newOffers[:0], t.newOffers[n*offerCols:]...)
-	}
-	return nil
+	_, err := t.flushBatch(&t.newOffers)
+	return err
 }
 
 // mergeRows merges the new row nr over the stored row old: present values
@@ -962,6 +1042,9 @@ func (t *ImportTx) Commit(counts Source) error {
 // finish writes what Put buffered: offers of new parts and the provenance
 // links.
 func (t *ImportTx) finish() error {
+	if err := t.flushBulk(); err != nil {
+		return err
+	}
 	if err := t.flushNewOffers(); err != nil {
 		return err
 	}

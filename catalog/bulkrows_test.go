@@ -1,0 +1,157 @@
+package catalog
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"testing"
+)
+
+// importAll imports ps into s in one transaction, half through Put and
+// half prepared ahead, and returns the outcomes.
+func importAll(t *testing.T, s *Store, ps []*Part) []Outcome {
+	t.Helper()
+	ctx := context.Background()
+	tx, err := s.BeginImport(ctx, Source{Label: "sheet", File: "sheet.csv"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer tx.Rollback()
+	var pr Preparer
+	var pp Prepared
+	var outs []Outcome
+	for i, p := range ps {
+		var o Outcome
+		if i%2 == 0 {
+			o, _, err = tx.Put(p)
+		} else if err = pr.Prepare(p, &pp); err == nil {
+			o, _, err = tx.PutPrepared(&pp)
+		}
+		if err != nil {
+			t.Fatalf("part %d: %v", i, err)
+		}
+		outs = append(outs, o)
+	}
+	if err := tx.Commit(Source{Read: len(ps)}); err != nil {
+		t.Fatal(err)
+	}
+	return outs
+}
+
+// New parts of an import into an empty catalog are written a batch at a
+// time through the virtual table; the catalog is the same, id for id, as
+// with one INSERT per part. The file has more than two batches of parts
+// and, spread through it, rows of parts met before (which flush the batch
+// and take the look-up path). A filter of 64 bits answers "maybe" for
+// nearly every key, so that nearly every part goes the slow way after a
+// flush of the few before it.
+func TestBatchedNewPartsMatchRowPath(t *testing.T) {
+	ps := genParts(2*bulkBatch+500, 7)
+	rep := bulkParts()[100:] // five rows of parts of genParts(100, 21)…
+	base := genParts(100, 21)
+	var file []*Part
+	for i, p := range ps {
+		file = append(file, p)
+		if i%997 == 500 {
+			file = append(file, base[i%100], rep[i%len(rep)]) // …met again later
+		}
+	}
+	file = append(file, base...)
+
+	run := func(bulk bool, bits int) ([]Outcome, []string) {
+		oldBulk, oldBits := bulkImports, keyFilterBits
+		bulkImports, keyFilterBits = bulk, bits
+		defer func() { bulkImports, keyFilterBits = oldBulk, oldBits }()
+		s := openTemp(t)
+		outs := importAll(t, s, file)
+		if probs, err := s.Check(context.Background()); err != nil || len(probs) != 0 {
+			t.Errorf("Check: %q %v", probs, err)
+		}
+		return outs, dumpCatalog(t, s)
+	}
+	wantOuts, want := run(false, keyFilterBits)
+	added := 0
+	for _, o := range wantOuts {
+		if o == Added {
+			added++
+		}
+	}
+	if added != len(ps)+100 {
+		t.Fatalf("row path added %d parts, want %d", added, len(ps)+100)
+	}
+	for _, c := range []struct {
+		name string
+		bits int
+	}{{"batched", keyFilterBits}, {"batched, filter of 64 bits", 64}} {
+		outs, got := run(true, c.bits)
+		for i := range outs {
+			if outs[i] != wantOuts[i] {
+				t.Errorf("%s: row %d: %v, row path %v", c.name, i, outs[i], wantOuts[i])
+				break
+			}
+		}
+		sameDump(t, c.name+" vs row path", got, want)
+	}
+}
+
+// A catalog that holds parts when the import begins takes the row path
+// (the filter knows only the keys the import wrote).
+func TestBatchedOnlyIntoEmptyCatalog(t *testing.T) {
+	ctx := context.Background()
+	s := openTemp(t)
+	importParts(t, s, "first", genParts(10, 3)...)
+	tx, err := s.BeginImport(ctx, Source{Label: "second"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer tx.Rollback()
+	if tx.bulk != nil {
+		t.Error("an import into a catalog with parts batches its new parts")
+	}
+	tx2 := openTemp(t)
+	tx3, err := tx2.BeginImport(ctx, Source{Label: "first"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer tx3.Rollback()
+	if tx3.bulk == nil {
+		t.Error("an import into an empty catalog does not batch its new parts")
+	}
+}
+
+// A Bloom filter never says "no" for a key it holds, and says "maybe" for
+// other keys about as often as (1 − e^(−k·n/m))^k (Bloom 1970; the
+// formula as in Broder and Mitzenmacher, "Network applications of Bloom
+// filters: a survey", Internet Mathematics 1(4), 2004).
+func TestKeyFilter(t *testing.T) {
+	for _, c := range []struct{ bits, n int }{{1 << 16, 2000}, {1 << 16, 8000}, {1 << 20, 50000}} {
+		old := keyFilterBits
+		keyFilterBits = c.bits
+		f := newKeyFilter()
+		keyFilterBits = old
+		for i := range c.n {
+			f.add(fmt.Sprintf("PN-%d", i), "maker")
+		}
+		for i := range c.n {
+			if !f.mayHave(fmt.Sprintf("PN-%d", i), "maker") {
+				t.Fatalf("%d bits, %d keys: key %d lost", c.bits, c.n, i)
+			}
+		}
+		// the same part number from another maker is another key
+		const probes = 200000
+		wrong := 0
+		for i := range probes {
+			if f.mayHave(fmt.Sprintf("PN-%d", i), "other maker") {
+				wrong++
+			}
+		}
+		k, n, m := float64(keyFilterProbes), float64(c.n), float64(c.bits)
+		want := math.Pow(1-math.Exp(-k*n/m), k)
+		// the count of wrong maybes is binomial: within five standard
+		// deviations of the formula's (the hash seed is random)
+		mean := want * probes
+		if sd := math.Sqrt(mean * (1 - want)); math.Abs(float64(wrong)-mean) > 5*sd+3 {
+			t.Errorf("%d bits, %d keys: %d wrong maybes in %d, formula %.1f", c.bits, c.n, wrong, probes, mean)
+		}
+	}
+}
