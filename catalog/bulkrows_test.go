@@ -94,9 +94,10 @@ func TestBatchedNewPartsMatchRowPath(t *testing.T) {
 	}
 }
 
-// A catalog that holds parts when the import begins takes the row path
-// (the filter knows only the keys the import wrote).
-func TestBatchedOnlyIntoEmptyCatalog(t *testing.T) {
+// An import into an empty catalog batches its new parts from the start;
+// into a catalog that holds parts it takes the row path at first (see
+// TestBatchedAfterARunOfNewParts).
+func TestBatchedFromTheStartOnlyIntoEmptyCatalog(t *testing.T) {
 	ctx := context.Background()
 	s := openTemp(t)
 	importParts(t, s, "first", genParts(10, 3)...)
@@ -154,4 +155,70 @@ func TestKeyFilter(t *testing.T) {
 			t.Errorf("%d bits, %d keys: %d wrong maybes in %d, formula %.1f", c.bits, c.n, wrong, probes, mean)
 		}
 	}
+}
+
+// An import into a catalog that had parts turns the batched writing on
+// after a long run of new parts (bulkAfter, and an eighth of the parts
+// the catalog had), with a filter of every key already stored; the
+// catalog is the same as with the row path all along.
+func TestBatchedAfterARunOfNewParts(t *testing.T) {
+	first := genParts(400, 5)
+	later := genParts(3000, 9)
+	var file []*Part
+	for i, p := range later {
+		file = append(file, p)
+		if i == 1500 {
+			file = append(file, first[7]) // a stored part in the middle
+		}
+	}
+	file = append(file, first[:50]...)
+
+	oldAfter := bulkAfter
+	bulkAfter = 200
+	defer func() { bulkAfter = oldAfter }()
+	run := func(bulk bool) ([]Outcome, []string, bool) {
+		oldBulk := bulkImports
+		bulkImports = bulk
+		defer func() { bulkImports = oldBulk }()
+		s := openTemp(t)
+		importAll(t, s, first)
+		ctx := context.Background()
+		tx, err := s.BeginImport(ctx, Source{Label: "second", File: "second.csv"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer tx.Rollback()
+		var outs []Outcome
+		on := false
+		for i, p := range file {
+			o, _, err := tx.Put(p)
+			if err != nil {
+				t.Fatalf("part %d: %v", i, err)
+			}
+			outs = append(outs, o)
+			if i == 100 && tx.bulk != nil {
+				t.Errorf("batched after %d new parts, before bulkAfter", i+1)
+			}
+			on = on || tx.bulk != nil
+		}
+		if err := tx.Commit(Source{Read: len(file)}); err != nil {
+			t.Fatal(err)
+		}
+		if probs, err := s.Check(ctx); err != nil || len(probs) != 0 {
+			t.Errorf("Check: %q %v", probs, err)
+		}
+		return outs, dumpCatalog(t, s), on
+	}
+	wantOuts, want, _ := run(false)
+	outs, got, on := run(true)
+	if !on {
+		t.Error("the batched writing never started")
+	}
+	for i := range outs {
+		if outs[i] != wantOuts[i] {
+			t.Errorf("row %d: %v, row path %v", i, outs[i], wantOuts[i])
+			break
+		}
+	}
+	sameDump(t, "batched after a run vs row path", got, want)
 }
