@@ -24,6 +24,11 @@
 //	          indexes; the import fails unless every CSV row is in the table.
 //	          Its partial indexes also hold the empty cells (imported as
 //	          empty strings, not NULL) until the fix-up removes them
+//	driver    the .import's work (same typed table, pragmas and text cells,
+//	          one transaction) through the pure-Go SQLite driver partsieve
+//	          uses: one bound INSERT a row, then batches of 2,048 rows by
+//	          INSERT … SELECT from a virtual table (what the driver alone
+//	          costs against the C shell)
 //	bleve     raw bleve batch indexing (batch 10,000) of mfr, mpn, desc, package
 //	xlsx      import of the XLSX into a new catalog
 //	find      catalog.Store.Search latencies (p50/p90) of parametric and
@@ -103,7 +108,7 @@ func parent(dir string, keep bool, rows, xrows int, seed uint64, reps int) error
 	}
 	all := results{}
 	peak := map[string]float64{}
-	phases := []string{"gen", "import", "sqlite3", "sqlite3-keyed", "bleve", "xlsx", "find", "pick"}
+	phases := []string{"gen", "import", "sqlite3", "sqlite3-keyed", "driver", "bleve", "xlsx", "find", "pick"}
 	for _, ph := range phases {
 		// the files earlier phases wrote (a gigabyte and more) are
 		// flushed first, so that their write-back does not run beside
@@ -163,6 +168,13 @@ func report(w io.Writer, r results, peak map[string]float64, rows, xrows int) {
 		}
 	} else {
 		ls = append(ls, line{"CSV import: parts usable (committed)", secs(usable), "sqlite3 shell absent", "≤ 2× .import", "n/a"})
+	}
+	if b, ok := r["driver_bound_s"]; ok {
+		ref := ""
+		if v, ok := r["sqlite3_import_s"]; ok {
+			ref = fmt.Sprintf("%.2f× and %.2f× .import", b/v, r["driver_batched_s"]/v)
+		}
+		ls = append(ls, line{"  (info) .import's work through the pure-Go driver", "one INSERT a row " + secs(b) + ", batched " + secs(r["driver_batched_s"]), ref, "", ""})
 	}
 	idx := ready - usable
 	braw := r["bleve_s"]

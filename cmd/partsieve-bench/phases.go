@@ -43,6 +43,8 @@ func runPhase(name, dir string, rows, xrows int, seed uint64, reps int) (results
 		return phaseSQLite3(dir)
 	case "sqlite3-keyed":
 		return phaseSQLite3Keyed(dir)
+	case "driver":
+		return phaseDriver(dir)
 	case "bleve":
 		return phaseBleve(dir)
 	case "xlsx":
