@@ -189,15 +189,20 @@ func (t *ImportTx) flushBatch(bi *batchInsert) (driver.Result, error) {
 	return res, nil
 }
 
-// dropBatch drops bi's virtual table (its INSERT is closed with the
-// import's other statements) and unregisters its batch.
-func (t *ImportTx) dropBatch(bi *batchInsert) {
+// dropBatch drops bi's virtual table (its INSERT must be closed first)
+// and unregisters its batch. It reports whether the table is gone.
+func (t *ImportTx) dropBatch(bi *batchInsert) bool {
+	ok := true
 	if bi.table != "" {
-		t.conn.ExecContext(context.Background(), "DROP TABLE IF EXISTS "+bi.table)
+		_, err := t.conn.ExecContext(context.Background(), "DROP TABLE IF EXISTS "+bi.table)
+		ok = err == nil
+		bi.table, bi.ins = "", nil
 	}
 	if bi.forget != nil {
 		bi.forget()
+		bi.forget = nil
 	}
+	return ok
 }
 
 // keyFilter is a Bloom filter of identity keys (part number key,

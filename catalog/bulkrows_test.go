@@ -92,6 +92,13 @@ func TestBatchedNewPartsMatchRowPath(t *testing.T) {
 		}
 		sameDump(t, c.name+" vs row path", got, want)
 	}
+	// every import gave its batches back
+	batches.Lock()
+	left := len(batches.m)
+	batches.Unlock()
+	if left != 0 {
+		t.Errorf("%d batches still registered after the imports", left)
+	}
 }
 
 // An import into an empty catalog batches its new parts from the start;

@@ -159,11 +159,6 @@ func (t *ImportTx) release() {
 		return
 	}
 	bg := context.Background()
-	if t.bulk != nil {
-		t.dropBatch(&t.bulk.parts)
-		t.bulk = nil
-	}
-	t.dropBatch(&t.newOffers)
 	if len(t.raw) > 0 {
 		t.conn.Raw(func(any) error {
 			for _, st := range t.raw {
@@ -173,11 +168,19 @@ func (t *ImportTx) release() {
 		})
 		t.raw = nil
 	}
-	ok := true
+	// a connection that keeps a batch table is not given back: the
+	// table's batch is gone
+	ok := t.dropBatch(&t.newOffers)
+	if t.bulk != nil {
+		ok = t.dropBatch(&t.bulk.parts) && ok
+		t.bulk = nil
+	}
 	for _, q := range t.restore {
+		if !ok {
+			break
+		}
 		if _, err := t.conn.ExecContext(bg, q); err != nil {
 			ok = false
-			break
 		}
 	}
 	var fk int
