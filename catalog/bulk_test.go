@@ -65,39 +65,17 @@ func bulkParts() []*Part {
 	return append(ps, same, val, off, price, kind)
 }
 
-// An import in one transaction (one insert per new part, offers in
-// batches, provenance by id range) stores the same catalog as the parts
-// imported one transaction each, which goes through the look-up path for
-// every part met before; a repeat import changes nothing.
+// An import in one transaction into an empty catalog (new parts and
+// offers written in batches, provenance by id range) stores the same
+// catalog as the parts imported one transaction each, which goes through
+// the look-up path for every part met before; a repeat import changes
+// nothing.
 func TestBulkImportMatchesPartByPart(t *testing.T) {
 	ctx := context.Background()
 	ps := bulkParts()
 
 	bulk := openTemp(t)
-	tx, err := bulk.BeginImport(ctx, Source{Label: "sheet", File: "sheet.csv", SHA256: "abc"})
-	if err != nil {
-		t.Fatal(err)
-	}
-	var pr Preparer
-	var pp Prepared
-	var outs []Outcome
-	for i, p := range ps {
-		// half through Put, half prepared ahead as an importer does
-		var o Outcome
-		if i%2 == 0 {
-			o, _, err = tx.Put(p)
-		} else if err = pr.Prepare(p, &pp); err == nil {
-			o, _, err = tx.PutPrepared(&pp)
-		}
-		if err != nil {
-			t.Fatalf("part %d: %v", i, err)
-		}
-		outs = append(outs, o)
-	}
-	c := tx.Counts()
-	if err := tx.Commit(Source{Read: len(ps)}); err != nil {
-		t.Fatal(err)
-	}
+	outs, c := importAll(t, bulk, ps)
 	if c.Added != 100 || c.Updated != 4 || c.Unchanged != 1 {
 		t.Errorf("bulk counts %+v", c)
 	}
@@ -126,7 +104,7 @@ func TestBulkImportMatchesPartByPart(t *testing.T) {
 	sameDump(t, "bulk vs part by part", dumpCatalog(t, bulk), dumpCatalog(t, single))
 
 	before := dumpCatalog(t, bulk)
-	tx, err = bulk.BeginImport(ctx, Source{Label: "sheet", File: "sheet.csv", SHA256: "abc"})
+	tx, err := bulk.BeginImport(ctx, Source{Label: "sheet", File: "sheet.csv", SHA256: "abc"})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -8,11 +8,12 @@ import (
 )
 
 // importAll imports ps into s in one transaction, half through Put and
-// half prepared ahead, and returns the outcomes.
-func importAll(t *testing.T, s *Store, ps []*Part) []Outcome {
+// half prepared ahead as an importer does, and returns the outcomes and
+// the counts.
+func importAll(t *testing.T, s *Store, ps []*Part) ([]Outcome, Source) {
 	t.Helper()
 	ctx := context.Background()
-	tx, err := s.BeginImport(ctx, Source{Label: "sheet", File: "sheet.csv"})
+	tx, err := s.BeginImport(ctx, Source{Label: "sheet", File: "sheet.csv", SHA256: "abc"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -32,10 +33,11 @@ func importAll(t *testing.T, s *Store, ps []*Part) []Outcome {
 		}
 		outs = append(outs, o)
 	}
+	c := tx.Counts()
 	if err := tx.Commit(Source{Read: len(ps)}); err != nil {
 		t.Fatal(err)
 	}
-	return outs
+	return outs, c
 }
 
 // New parts of an import into an empty catalog are written a batch at a
@@ -63,7 +65,7 @@ func TestBatchedNewPartsMatchRowPath(t *testing.T) {
 		bulkImports, keyFilterBits = bulk, bits
 		defer func() { bulkImports, keyFilterBits = oldBulk, oldBits }()
 		s := openTemp(t)
-		outs := importAll(t, s, file)
+		outs, _ := importAll(t, s, file)
 		if probs, err := s.Check(context.Background()); err != nil || len(probs) != 0 {
 			t.Errorf("Check: %q %v", probs, err)
 		}
