@@ -168,10 +168,11 @@ func (t *ImportTx) flushBatch(bi *batchInsert) (driver.Result, error) {
 	if bi.ins == nil {
 		if bi.table == "" {
 			name, create, forget := newBatchTable(&bi.batch)
-			bi.forget = forget
 			if _, err := t.conn.ExecContext(t.ctx, create); err != nil {
+				forget()
 				return nil, err
 			}
+			bi.forget = forget
 			bi.table = name
 		}
 		st, err := t.rawPrepare(bi.sql(bi.table))

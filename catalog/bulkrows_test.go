@@ -2,9 +2,11 @@ package catalog
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"testing"
+	"time"
 )
 
 // importAll imports ps into s in one transaction, half through Put and
@@ -230,4 +232,54 @@ func TestBatchedAfterARunOfNewParts(t *testing.T) {
 		}
 	}
 	sameDump(t, "batched after a run vs row path", got, want)
+}
+
+// An import whose context ends part way writes nothing, on the row path
+// and on the batched one: the Put that notices returns the context's
+// error, Commit refuses, and after the rollback the catalog holds what it
+// held before. (database/sql would roll a transaction that watches the
+// context back on its own goroutine and keep the connection, and the
+// statements the import runs on the connection directly would then each
+// commit alone.)
+func TestCancelledImportWritesNothing(t *testing.T) {
+	for _, c := range []struct {
+		name  string
+		bulk  bool
+		first int // parts in the catalog before
+	}{{"row path", false, 5}, {"batched", true, 0}, {"row path, empty catalog", false, 0}} {
+		t.Run(c.name, func(t *testing.T) {
+			oldBulk := bulkImports
+			bulkImports = c.bulk
+			defer func() { bulkImports = oldBulk }()
+			s := openTemp(t)
+			if c.first > 0 {
+				importAll(t, s, genParts(c.first, 11))
+			}
+			before := dumpCatalog(t, s)
+			ctx, cancel := context.WithCancel(context.Background())
+			defer cancel()
+			tx, err := s.BeginImport(ctx, Source{Label: "cancelled"})
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer tx.Rollback()
+			var putErr error
+			for i, p := range genParts(3*bulkBatch, 12) {
+				if i == bulkBatch+500 {
+					cancel()
+					time.Sleep(20 * time.Millisecond) // give a watcher time to act
+				}
+				if _, _, putErr = tx.Put(p); putErr != nil {
+					break
+				}
+			}
+			if !errors.Is(putErr, context.Canceled) {
+				t.Errorf("Put after cancel: %v", putErr)
+			}
+			if err := tx.Commit(Source{}); !errors.Is(err, context.Canceled) {
+				t.Errorf("Commit after cancel: %v", err)
+			}
+			sameDump(t, "after a cancelled import", dumpCatalog(t, s), before)
+		})
+	}
 }

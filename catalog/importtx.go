@@ -131,7 +131,12 @@ func (s *Store) BeginImport(ctx context.Context, src Source) (*ImportTx, error) 
 		return nil, busy(err)
 	}
 	t.restore = append(t.restore, `PRAGMA foreign_keys = ON`)
-	if t.tx, err = conn.BeginTx(ctx, nil); err != nil { // BEGIN IMMEDIATE (_txlock)
+	// The transaction does not watch ctx: database/sql would roll it back
+	// from another goroutine when ctx ends and keep the connection, and
+	// the statements the import runs on the connection directly would
+	// then each commit on their own. The import checks ctx itself
+	// (PutPrepared, Commit) and its caller rolls back.
+	if t.tx, err = conn.BeginTx(context.WithoutCancel(ctx), nil); err != nil { // BEGIN IMMEDIATE (_txlock)
 		t.release()
 		return nil, busy(err)
 	}
@@ -240,7 +245,13 @@ func (t *ImportTx) prepare() error {
 		return `INSERT OR FAIL INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id)
 			SELECT c0, c1, c2, c3, c4, c5, c6, c7, ` + srcID + ` FROM ` + table
 	}}
-	if t.partsAtBegin == 0 && bulkImports {
+	// empty: no part at all (max(id) = 0 would also hold for a table
+	// whose ids were all set to zero or below from outside)
+	var any int
+	if err = t.tx.QueryRowContext(ctx, `SELECT EXISTS (SELECT 1 FROM parts)`).Scan(&any); err != nil {
+		return err
+	}
+	if any == 0 && bulkImports {
 		t.startBulk(newKeyFilter(), 1)
 	}
 	return nil
@@ -1050,6 +1061,10 @@ func (t *ImportTx) Commit(counts Source) error {
 	}
 	t.done = true
 	ctx := t.ctx
+	if err := ctx.Err(); err != nil {
+		t.abort()
+		return t.fail(err)
+	}
 	if err := t.finish(); err != nil {
 		t.abort()
 		return t.fail(err)
