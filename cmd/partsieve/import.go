@@ -90,6 +90,11 @@ func runImport(cmd *cobra.Command, a *app, o importOptions, files []string) erro
 			opt.Progress = a.stderr
 		}
 		sum, err := importers.ImportFile(ctx, st, file, opt)
+		if err != nil && ctx.Err() != nil {
+			// interrupted (Ctrl-C): this file's import was rolled back;
+			// the files before it stay imported
+			return fmt.Errorf("%s: %w", file, ctx.Err())
+		}
 		if err != nil {
 			failed = append(failed, err)
 			fmt.Fprintf(a.stderr, "Error: %v\n", err)

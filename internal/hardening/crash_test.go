@@ -198,3 +198,72 @@ func runAndKill(t *testing.T, bin, db string, delay time.Duration, args ...strin
 	checkNoPanic(t, args, r)
 	return false, r
 }
+
+// TestInterruptDuringImport sends SIGINT (Ctrl-C) to `partsieve import` of
+// the update sheet part way: the command stops with exit code 130 and the
+// catalog is exactly the old state (or the new one when the import
+// finished first), never part of the import, and passes catalog check.
+// Before the import's transaction stopped watching the context,
+// database/sql rolled it back on another goroutine at the interrupt and
+// the row path's statements then committed one by one on the same
+// connection.
+func TestInterruptDuringImport(t *testing.T) {
+	t.Parallel()
+	f := getFixture(t)
+	bin := partsieve(t)
+	db := filepath.Join(t.TempDir(), "catalog.db")
+	runs := 6
+	if testing.Short() {
+		runs = 3
+	}
+	nOld := 0
+	for run := 1; run <= runs; run++ {
+		copyCatalog(t, f.oldDB, db)
+		// spread over the middle of the import: past the opening, before
+		// the commit
+		delay := f.importTime * time.Duration(2+run) / time.Duration(runs+4)
+		cmd := exec.Command(bin, "--db", db, "import", f.update)
+		cmd.Env = cliEnv()
+		var out, errb strings.Builder
+		cmd.Stdout, cmd.Stderr = &out, &errb
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		done := make(chan error, 1)
+		go func() { done <- cmd.Wait() }()
+		var err error
+		interrupted := false
+		select {
+		case err = <-done:
+		case <-time.After(delay):
+			cmd.Process.Signal(syscall.SIGINT)
+			interrupted = true
+			err = <-done
+		}
+		r := result{stdout: out.String(), stderr: errb.String()}
+		r.code = exitCode(t, err)
+		checkNoPanic(t, []string{"import", f.update}, r)
+		st := readState(t, db)
+		switch {
+		case st.Hash == f.old.Hash:
+			nOld++
+			if r.code != 130 {
+				t.Errorf("run %d (SIGINT after %v): the catalog is unchanged but the exit code is %d:\n%s", run, delay, r.code, r)
+			}
+		case st.Hash == f.new.Hash:
+			if interrupted && r.code != 0 {
+				t.Errorf("run %d: the import committed but exited %d:\n%s", run, r.code, r)
+			}
+		default:
+			t.Fatalf("run %d (SIGINT after %v, exit %d): the catalog is neither the old nor the new state:\n got %v\n old %v\n new %v\n%s",
+				run, delay, r.code, st, f.old, f.new, r)
+		}
+		if chk := cli(t, db, "catalog", "check"); chk.code != 0 && !staleOnly(problems(chk.stdout)) {
+			t.Fatalf("run %d: catalog check after SIGINT after %v:\n%s", run, delay, chk)
+		}
+		t.Logf("run %d: SIGINT after %v: exit %d, catalog %s", run, delay.Round(time.Millisecond), r.code, stateName(st.Hash == f.new.Hash))
+	}
+	if nOld == 0 {
+		t.Errorf("no interrupt landed before the commit: the delays do not cover the import")
+	}
+}
