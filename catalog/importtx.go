@@ -281,12 +281,12 @@ func (t *ImportTx) startBulk(f *keyFilter, nextID int64) {
 
 // bulkAfter is the least run of new parts, one after the other, after
 // which an import into a catalog that had parts turns the batched writing
-// on (a variable for tests). The filter then needs every key of the
+// on: one batch's worth (a variable for tests). The filter then needs every key of the
 // catalog, read from the key index (about a microsecond a part, against
 // some 7 µs a part saved): the run must also be at least an eighth of the
 // parts the catalog had, so that the parts added so far would have paid
 // for the read, which new parts still to come then repay.
-var bulkAfter = 8192
+var bulkAfter = bulkBatch
 
 // maybeStartBulk turns the batched writing on after a long enough run of
 // new parts (see bulkAfter).

@@ -10,6 +10,8 @@
 //     check` passes (or reports only a stale text index, which the next
 //     text search rebuilds) and that the catalog holds exactly the old state
 //     or exactly the complete import.
+//   - TestInterruptDuringImport (Unix) sends SIGINT part way through an
+//     import: exit code 130, and the catalog is the old or the new state.
 //   - TestReadersDuringImport runs find and pick in other processes while
 //     an import runs; TestTwoImports and TestSecondImportFailsWhileLocked
 //     start a second writer during an import.
@@ -20,9 +22,10 @@
 //
 // Long runs: PARTSIEVE_CRASH_RUNS sets the number of kills (default 50, 12
 // with -short), PARTSIEVE_CRASH_SEED the seed of the delays (logged), and
-// PARTSIEVE_CRASH_ROWS the new rows of the update (from 20000 on, the import
-// takes the bulk path that drops and rebuilds the parametric indexes in its
-// transaction). For example:
+// PARTSIEVE_CRASH_ROWS the new rows of the update (the update's import
+// switches to batched writes of its new parts after 2,048 of them in a
+// row, so kills land on both the row path and the batched one). For
+// example:
 //
 //	PARTSIEVE_CRASH_RUNS=500 go test -timeout 0 -run Crash -v ./internal/hardening/
 //
