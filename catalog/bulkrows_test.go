@@ -120,13 +120,13 @@ func TestBatchedFromTheStartOnlyIntoEmptyCatalog(t *testing.T) {
 	if tx.bulk != nil {
 		t.Error("an import into a catalog with parts batches its new parts")
 	}
-	tx2 := openTemp(t)
-	tx3, err := tx2.BeginImport(ctx, Source{Label: "first"})
+	empty := openTemp(t)
+	tx2, err := empty.BeginImport(ctx, Source{Label: "first"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer tx3.Rollback()
-	if tx3.bulk == nil {
+	defer tx2.Rollback()
+	if tx2.bulk == nil {
 		t.Error("an import into an empty catalog does not batch its new parts")
 	}
 }

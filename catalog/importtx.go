@@ -247,11 +247,11 @@ func (t *ImportTx) prepare() error {
 	}}
 	// empty: no part at all (max(id) = 0 would also hold for a table
 	// whose ids were all set to zero or below from outside)
-	var any int
-	if err = t.tx.QueryRowContext(ctx, `SELECT EXISTS (SELECT 1 FROM parts)`).Scan(&any); err != nil {
+	var hasParts bool
+	if err = t.tx.QueryRowContext(ctx, `SELECT EXISTS (SELECT 1 FROM parts)`).Scan(&hasParts); err != nil {
 		return err
 	}
-	if any == 0 && bulkImports {
+	if !hasParts && bulkImports {
 		t.startBulk(newKeyFilter(), 1)
 	}
 	return nil
@@ -281,11 +281,11 @@ func (t *ImportTx) startBulk(f *keyFilter, nextID int64) {
 
 // bulkAfter is the least run of new parts, one after the other, after
 // which an import into a catalog that had parts turns the batched writing
-// on: one batch's worth (a variable for tests). The filter then needs every key of the
-// catalog, read from the key index (about a microsecond a part, against
-// some 7 µs a part saved): the run must also be at least an eighth of the
-// parts the catalog had, so that the parts added so far would have paid
-// for the read, which new parts still to come then repay.
+// on: one batch's worth (a variable for tests). The filter then needs
+// every key of the catalog, read from the key index (about a microsecond
+// a part, against some 7 µs a part saved): the run must also be at least
+// an eighth of the parts the catalog had, so that the parts added so far
+// would have paid for the read, which new parts still to come then repay.
 var bulkAfter = bulkBatch
 
 // maybeStartBulk turns the batched writing on after a long enough run of
@@ -310,11 +310,9 @@ func (t *ImportTx) maybeStartBulk() error {
 	if err := rows.Err(); err != nil {
 		return err
 	}
-	var maxID int64
-	if err := t.tx.QueryRowContext(t.ctx, `SELECT coalesce(max(id), 0) FROM parts`).Scan(&maxID); err != nil {
-		return err
-	}
-	t.startBulk(f, maxID+1)
+	// the run's last part got max(id)+1 from SQLite: the next id follows
+	// it (flushBulk checks the ids)
+	t.startBulk(f, t.lastNew+1)
 	return nil
 }
 
@@ -330,11 +328,8 @@ func (t *ImportTx) bulkAdd(pp *Prepared) (Outcome, []Change, error) {
 	b.nextID++
 	b.parts.batch.vals = append(append(b.parts.batch.vals, id, pp.mk, pp.pk), pp.row...)
 	b.filter.add(pp.pk, pp.mk)
-	t.noteNew(id, pp.offers)
-	if t.newOffers.batch.len() >= bulkBatch {
-		if err := t.flushNewOffers(); err != nil {
-			return 0, nil, t.fail(err)
-		}
+	if err := t.noteNew(id, pp.offers); err != nil {
+		return 0, nil, t.fail(err)
 	}
 	if b.parts.batch.len() >= bulkBatch {
 		if err := t.flushBulk(); err != nil {
@@ -695,19 +690,16 @@ func (t *ImportTx) insert(pp *Prepared) (Outcome, error) {
 		b.filter.add(pp.pk, pp.mk)
 		b.nextID = id + 1
 	}
-	t.noteNew(id, offers)
-	if t.newOffers.batch.len() >= bulkBatch {
-		if err := t.flushNewOffers(); err != nil {
-			return 0, t.fail(err)
-		}
+	if err := t.noteNew(id, offers); err != nil {
+		return 0, t.fail(err)
 	}
 	return Added, nil
 }
 
 // noteNew records the part id just added with its offers: the offers are
-// queued for a batched insert, the id for the provenance links and the
-// text index.
-func (t *ImportTx) noteNew(id int64, offers []offerRow) {
+// queued for a batched insert (written when a batch is full), the id for
+// the provenance links and the text index.
+func (t *ImportTx) noteNew(id int64, offers []offerRow) error {
 	switch {
 	case t.firstNew == 0:
 		t.firstNew = id
@@ -733,6 +725,10 @@ func (t *ImportTx) noteNew(id int64, offers []offerRow) {
 	t.added++
 	t.dirty = true
 	t.textIDs = append(t.textIDs, id)
+	if t.newOffers.batch.len() >= bulkBatch {
+		return t.flushNewOffers()
+	}
+	return nil
 }
 
 func dupOffer(before []offerRow, o *offerRow) bool {

@@ -241,3 +241,26 @@ func TestCheckTellsColumnFile(t *testing.T) {
 		t.Errorf("after a pick the column file is not current:\n%s", out)
 	}
 }
+
+// TestImportInterrupted: an import run with its context already cancelled
+// (Ctrl-C before the catalog is open) ends with exit code 130 and says it
+// was interrupted; the catalog keeps what it had. An interrupt part way
+// through an import is TestInterruptDuringImport in internal/hardening
+// (a real SIGINT to the binary).
+func TestImportInterrupted(t *testing.T) {
+	db := newDB(t)
+	before, errs, code := runCLI(t, db, "catalog", "stats", "--format", "json")
+	if code != 0 {
+		t.Fatalf("stats: code %d, stderr %s", code, errs)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	var out, errb bytes.Buffer
+	code = run(ctx, []string{"--db", db, "import", filepath.Join("testdata", "harbor-diodes.csv")}, strings.NewReader(""), &out, &errb)
+	if code != exitCanceled || !strings.Contains(errb.String(), "interrupted") {
+		t.Errorf("cancelled import: code %d, stderr %s", code, errb.String())
+	}
+	if after, _, _ := runCLI(t, db, "catalog", "stats", "--format", "json"); after != before {
+		t.Errorf("catalog changed by a cancelled import:\n%s\nwant\n%s", after, before)
+	}
+}

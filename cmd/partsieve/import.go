@@ -81,6 +81,7 @@ func runImport(cmd *cobra.Command, a *app, o importOptions, files []string) erro
 	var sums []*importers.Summary
 	var allRejects []importers.Reject
 	var failed []error
+	var interrupted error
 	for _, file := range files {
 		opt := importers.Options{
 			Kind: kind, MapFile: o.mapFile, Sheet: o.sheet, Source: o.source,
@@ -92,8 +93,9 @@ func runImport(cmd *cobra.Command, a *app, o importOptions, files []string) erro
 		sum, err := importers.ImportFile(ctx, st, file, opt)
 		if err != nil && ctx.Err() != nil {
 			// interrupted (Ctrl-C): this file's import was rolled back;
-			// the files before it stay imported
-			return fmt.Errorf("%s: %w", file, ctx.Err())
+			// the files before it stay imported and are reported below
+			interrupted = fmt.Errorf("%s: %w", file, ctx.Err())
+			break
 		}
 		if err != nil {
 			failed = append(failed, err)
@@ -128,6 +130,9 @@ func runImport(cmd *cobra.Command, a *app, o importOptions, files []string) erro
 		for _, s := range sums {
 			printSummary(a.stdout, s, o.rejects)
 		}
+	}
+	if interrupted != nil {
+		return interrupted
 	}
 	if len(failed) > 0 {
 		return &codeError{code: exitError}
