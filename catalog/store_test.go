@@ -26,6 +26,13 @@ func TestOpenCreatesSchema(t *testing.T) {
 	if err := s.db.QueryRowContext(ctx, `PRAGMA journal_mode`).Scan(&mode); err != nil || mode != "wal" {
 		t.Errorf("journal_mode = %q, %v", mode, err)
 	}
+	// the page size is fixed when the first page is written (SQLite
+	// documentation, "PRAGMA page_size"): a new catalog gets the
+	// catalog's, not the 4,096 default
+	var ps int
+	if err := s.db.QueryRowContext(ctx, `PRAGMA page_size`).Scan(&ps); err != nil || ps != pageSize || pageSize == 4096 {
+		t.Errorf("page_size = %d, %v; want %d", ps, err, pageSize)
+	}
 	var fk int
 	if err := s.db.QueryRowContext(ctx, `PRAGMA foreign_keys`).Scan(&fk); err != nil || fk != 1 {
 		t.Errorf("foreign_keys = %d, %v", fk, err)
