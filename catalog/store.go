@@ -77,15 +77,21 @@ func busyPragma() string {
 }
 
 // pageSize is the page size of a new catalog, in bytes (SQLite's default
-// is 4,096). Measured at a million imported parts (paired runs on the
-// scale benchmark's CSV, 2-core VM): parts usable 24.1–25.8 s with 4 KiB
-// pages, 20.7–23.0 s with 16 KiB, 20.3–21.0 s with 32 KiB, 23.2 s with
-// 64 KiB; CPU time 41 s at 4 KiB against 35 s at 16 KiB, because a row
-// insert descends fewer and larger pages (about half the b-tree page
-// splits, WAL frames and page-cache look-ups), and the page cache keeps
-// the same bytes. Peak memory 259 MB at 4 KiB, 237 MB at 16 KiB. A
-// catalog keeps the page size it was made with.
-const pageSize = 16384
+// is 4,096; 65,536 is the largest). Measured at a million imported parts
+// on the scale benchmark's CSV (2-core VM, runs alternating between the
+// sizes, which this VM needs: its speed drifts by a sixth over minutes):
+// parts usable 23.8–29.3 s with 4 KiB pages, 24.2–26.1 s with 16 KiB,
+// 20.2–22.8 s with 32 KiB, 23.2 s with 64 KiB (one run); CPU 37–46 s at
+// 4 KiB, 34–40 s at 32 KiB. A row insert descends fewer, larger pages:
+// fewer b-tree page splits, WAL frames and page-cache look-ups (b-tree
+// inserts 12.7 → 7.3 CPU-seconds, WAL writes 4.2 → 1.1 in the profile),
+// and the page cache holds the same bytes in fewer, larger slots (peak
+// 259 MB at 4 KiB, 216 MB at 32 KiB). An update import of 100,000 known
+// parts into that catalog (stock of each changed, half the descriptions)
+// took 9.6 s at 4 KiB, 9.7 s at 16 KiB and 8.0 s at 32 KiB; find and pick
+// at a million parts were unchanged (README). A catalog keeps the page
+// size it was made with.
+const pageSize = 32768
 
 // createFile makes the new, empty database file of a catalog with the
 // catalog's page size, in WAL mode. The page size only takes effect before
