@@ -47,11 +47,20 @@ func init() {
 // row after the other in vals, in the column order of its declaration
 // (c0, c1, …).
 type rowBatch struct {
-	ncol int
-	vals []any
+	ncol   int
+	vals   []any
+	lo, hi int // the cursor serves rows lo ≤ i < hi; all rows when hi is 0
 }
 
 func (b *rowBatch) len() int { return len(b.vals) / b.ncol }
+
+// end is the row after the last one the cursor serves.
+func (b *rowBatch) end() int {
+	if b.hi > 0 {
+		return b.hi
+	}
+	return b.len()
+}
 
 // batches maps the number in a virtual table's arguments to its batch.
 var batches struct {
@@ -134,59 +143,80 @@ type batchCursor struct {
 	i int
 }
 
-func (c *batchCursor) Filter(int, string, []vtab.Value) error { c.i = 0; return nil }
+func (c *batchCursor) Filter(int, string, []vtab.Value) error { c.i = c.b.lo; return nil }
 func (c *batchCursor) Next() error                            { c.i++; return nil }
-func (c *batchCursor) Eof() bool                              { return c.i >= c.b.len() }
+func (c *batchCursor) Eof() bool                              { return c.i >= c.b.end() }
 func (c *batchCursor) Rowid() (int64, error)                  { return int64(c.i + 1), nil }
 func (c *batchCursor) Close() error                           { return nil }
 
 // Column returns a value as stored in the batch: nil, int64, float64 or
 // string (a row's values, see row).
 func (c *batchCursor) Column(col int) (vtab.Value, error) {
-	if c.i >= c.b.len() || col < 0 || col >= c.b.ncol {
+	if c.i >= c.b.end() || col < 0 || col >= c.b.ncol {
 		return nil, fmt.Errorf("%s: no column %d in row %d", bulkModule, col, c.i)
 	}
 	return c.b.vals[c.i*c.b.ncol+col], nil
 }
 
-// batchInsert is a batch of rows and the statement that inserts them all
-// from a temp virtual table over the batch.
+// batchInsert is a batch of rows and the statements that insert them
+// from a temp virtual table over the batch: variant 0 for all of them,
+// others for runs of rows (flushBulk).
 type batchInsert struct {
 	batch  rowBatch
-	table  string      // the temp virtual table, once created
-	forget func()      // unregisters batch
-	ins    driver.Stmt // the INSERT … SELECT, once prepared
-	sql    func(table string) string
+	table  string        // the temp virtual table, once created
+	forget func()        // unregisters batch
+	ins    []driver.Stmt // the INSERT … SELECT of each variant, once prepared
+	sql    func(table string, variant int) string
 }
 
-// flushBatch runs bi's INSERT over its rows and empties the batch. It
-// returns the statement's result (nil when the batch was empty).
+// batchStmt returns bi's statement of the variant, creating the table and
+// preparing the statement on first use.
+func (t *ImportTx) batchStmt(bi *batchInsert, variant int) (driver.Stmt, error) {
+	if bi.table == "" {
+		name, create, forget := newBatchTable(&bi.batch)
+		if _, err := t.conn.ExecContext(t.ctx, create); err != nil {
+			forget()
+			return nil, err
+		}
+		bi.forget = forget
+		bi.table = name
+	}
+	for len(bi.ins) <= variant {
+		bi.ins = append(bi.ins, nil)
+	}
+	if bi.ins[variant] == nil {
+		st, err := t.rawPrepare(bi.sql(bi.table, variant))
+		if err != nil {
+			return nil, err
+		}
+		bi.ins[variant] = st
+	}
+	return bi.ins[variant], nil
+}
+
+// reset empties the batch.
+func (bi *batchInsert) reset() {
+	clear(bi.batch.vals) // let the values go
+	bi.batch.vals = bi.batch.vals[:0]
+	bi.batch.lo, bi.batch.hi = 0, 0
+}
+
+// flushBatch runs bi's INSERT (variant 0) over all its rows and empties
+// the batch. It returns the statement's result (nil when the batch was
+// empty).
 func (t *ImportTx) flushBatch(bi *batchInsert) (driver.Result, error) {
 	if bi.batch.len() == 0 {
 		return nil, nil
 	}
-	if bi.ins == nil {
-		if bi.table == "" {
-			name, create, forget := newBatchTable(&bi.batch)
-			if _, err := t.conn.ExecContext(t.ctx, create); err != nil {
-				forget()
-				return nil, err
-			}
-			bi.forget = forget
-			bi.table = name
-		}
-		st, err := t.rawPrepare(bi.sql(bi.table))
-		if err != nil {
-			return nil, err
-		}
-		bi.ins = st
-	}
-	res, err := t.rawExec(bi.ins, nil)
+	st, err := t.batchStmt(bi, 0)
 	if err != nil {
 		return nil, err
 	}
-	clear(bi.batch.vals) // let the values go
-	bi.batch.vals = bi.batch.vals[:0]
+	res, err := t.rawExec(st, nil)
+	if err != nil {
+		return nil, err
+	}
+	bi.reset()
 	return res, nil
 }
 

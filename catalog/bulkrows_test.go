@@ -5,6 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"regexp"
+	"strings"
 	"testing"
 	"time"
 )
@@ -281,5 +283,68 @@ func TestCancelledImportWritesNothing(t *testing.T) {
 			}
 			sameDump(t, "after a cancelled import", dumpCatalog(t, s), before)
 		})
+	}
+}
+
+// A batch of new parts is written one statement per run of one kind, and
+// that statement names only the kind's fields: kindVariant picks it only
+// when every other field of the row is NULL, so no value is left out.
+func TestKindVariant(t *testing.T) {
+	var pr Preparer
+	var pp Prepared
+	seen := map[Kind]bool{}
+	for _, p := range genParts(60, 3) {
+		if err := pr.Prepare(p, &pp); err != nil {
+			t.Fatal(err)
+		}
+		k, _, _ := pp.SortKey()
+		if k != p.Kind {
+			t.Fatalf("SortKey kind %q, part kind %q", k, p.Kind)
+		}
+		v := kindVariant(pp.row)
+		if v == 0 || Kinds[v-1] != p.Kind {
+			t.Fatalf("%s %s: variant %d", p.Kind, p.MPN, v)
+		}
+		seen[p.Kind] = true
+		r := append(row(nil), pp.row...)
+		r[notOfKind[v-1][0]] = 1.0 // a value in a field of another kind
+		if got := kindVariant(r); got != 0 {
+			t.Errorf("%s with a field of another kind: variant %d, want 0", p.Kind, got)
+		}
+		r = append(row(nil), pp.row...)
+		r[kindField] = "relay"
+		if got := kindVariant(r); got != 0 {
+			t.Errorf("unknown kind: variant %d, want 0", got)
+		}
+	}
+	if len(seen) != len(Kinds) {
+		t.Fatalf("genParts gave kinds %v", seen)
+	}
+
+	tx := &ImportTx{now: 1}
+	tx.startBulk(newKeyFilter(), 1)
+	all := tx.bulk.parts.sql("b", 0)
+	for _, f := range Fields {
+		if !strings.Contains(all, `"`+colName(f.Name)+`"`) {
+			t.Errorf("variant 0 lacks %s", f.Name)
+		}
+	}
+	for v, k := range Kinds {
+		q := tx.bulk.parts.sql("b", v+1)
+		n := 0
+		for _, f := range Fields {
+			has := strings.Contains(q, `"`+colName(f.Name)+`"`)
+			if has != f.AppliesTo(k) {
+				t.Errorf("variant %d (%s): names %s: %v", v+1, k, f.Name, has)
+			}
+			if has {
+				n++
+			}
+		}
+		// columns and selected values line up: mfr_key, mpn_key, the
+		// fields, created, updated
+		if got := len(regexp.MustCompile(`, c[0-9]+\b`).FindAllString(q, -1)); got != n+1 {
+			t.Errorf("variant %d selects %d batch columns after the first, want %d", v+1, got, n+1)
+		}
 	}
 }

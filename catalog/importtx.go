@@ -69,9 +69,10 @@ type ImportTx struct {
 // first flushes the batch, then takes the row-at-a-time path, so every
 // look-up sees every part written before it.
 type bulkRows struct {
-	filter *keyFilter
-	parts  batchInsert // id, mfr_key, mpn_key, then the fields of a row
-	nextID int64       // id of the next new part: ids are max(id)+1, as SQLite assigns them
+	filter   *keyFilter
+	parts    batchInsert // id, mfr_key, mpn_key, then the fields of a row
+	variants []uint8     // statement variant of each queued part (kindVariant)
+	nextID   int64       // id of the next new part: ids are max(id)+1, as SQLite assigns them
 }
 
 // Bulk-load tuning. Offers of new parts, and new parts of an import into
@@ -241,7 +242,7 @@ func (t *ImportTx) prepare() error {
 	t.insPart = map[string]driver.Stmt{}
 	t.newRange = true
 	srcID := strconv.FormatInt(t.srcID, 10)
-	t.newOffers = batchInsert{batch: rowBatch{ncol: offerCols}, sql: func(table string) string {
+	t.newOffers = batchInsert{batch: rowBatch{ncol: offerCols}, sql: func(table string, _ int) string {
 		return `INSERT OR FAIL INTO offers(part_id, supplier, supplier_key, sku, stock, moq, currency, breaks, source_id)
 			SELECT c0, c1, c2, c3, c4, c5, c6, c7, ` + srcID + ` FROM ` + table
 	}}
@@ -261,7 +262,7 @@ func (t *ImportTx) prepare() error {
 // holds every key in the catalog and the id the next new part gets.
 func (t *ImportTx) startBulk(f *keyFilter, nextID int64) {
 	now := strconv.FormatInt(t.now, 10)
-	t.bulk = &bulkRows{filter: f, nextID: nextID, parts: batchInsert{batch: rowBatch{ncol: 3 + len(Fields)}, sql: func(table string) string {
+	t.bulk = &bulkRows{filter: f, nextID: nextID, parts: batchInsert{batch: rowBatch{ncol: 3 + len(Fields)}, sql: func(table string, variant int) string {
 		// The ids are not written: an id given in the statement makes
 		// SQLite check it is an integer, and that check may abort the
 		// statement half way, so SQLite keeps a statement journal (a
@@ -269,8 +270,14 @@ func (t *ImportTx) startBulk(f *keyFilter, nextID int64) {
 		// million parts). SQLite gives each row max(id)+1 in the order
 		// the table yields them, which is the ids handed out; flushBulk
 		// checks the last one.
+		// Variant v > 0 names only the fields of kind Kinds[v-1]: the
+		// others are NULL in its rows, and every column named costs a
+		// call from SQLite into the batch's cursor per row.
 		var cols, sel strings.Builder
 		for i, f := range Fields {
+			if variant > 0 && !f.AppliesTo(Kinds[variant-1]) {
+				continue
+			}
 			cols.WriteString(`, "` + colName(f.Name) + `"`)
 			sel.WriteString(", c" + strconv.Itoa(3+i))
 		}
@@ -327,6 +334,7 @@ func (t *ImportTx) bulkAdd(pp *Prepared) (Outcome, []Change, error) {
 	id := b.nextID
 	b.nextID++
 	b.parts.batch.vals = append(append(b.parts.batch.vals, id, pp.mk, pp.pk), pp.row...)
+	b.variants = append(b.variants, kindVariant(pp.row))
 	b.filter.add(pp.pk, pp.mk)
 	if err := t.noteNew(id, pp.offers); err != nil {
 		return 0, nil, t.fail(err)
@@ -340,34 +348,88 @@ func (t *ImportTx) bulkAdd(pp *Prepared) (Outcome, []Change, error) {
 	return Added, nil, nil
 }
 
-// flushBulk writes the queued new parts in one statement.
+// flushBulk writes the queued new parts: one statement per run of parts
+// of one variant (kindVariant), each checked for the ids it was to give.
 func (t *ImportTx) flushBulk() error {
 	b := t.bulk
 	if b == nil {
 		return nil
 	}
-	n := b.parts.batch.len()
+	bt := &b.parts.batch
+	n := bt.len()
 	if n == 0 {
 		return nil
 	}
-	want := b.parts.batch.vals[(n-1)*b.parts.batch.ncol].(int64)
-	res, err := t.flushBatch(&b.parts)
-	if err != nil {
-		return err
+	defer func() { bt.lo, bt.hi = 0, 0 }()
+	for lo := 0; lo < n; {
+		v := b.variants[lo]
+		hi := lo + 1
+		for hi < n && b.variants[hi] == v {
+			hi++
+		}
+		st, err := t.batchStmt(&b.parts, int(v))
+		if err != nil {
+			return err
+		}
+		bt.lo, bt.hi = lo, hi
+		res, err := t.rawExec(st, nil)
+		if err != nil {
+			return err
+		}
+		added, err := res.RowsAffected()
+		if err != nil {
+			return err
+		}
+		last, err := res.LastInsertId()
+		if err != nil {
+			return err
+		}
+		if want := bt.vals[(hi-1)*bt.ncol].(int64); added != int64(hi-lo) || last != want {
+			return fmt.Errorf("internal error: %d new parts written with last id %d, expected %d with last id %d", added, last, hi-lo, want)
+		}
+		lo = hi
 	}
-	added, err := res.RowsAffected()
-	if err != nil {
-		return err
-	}
-	last, err := res.LastInsertId()
-	if err != nil {
-		return err
-	}
-	if added != int64(n) || last != want {
-		return fmt.Errorf("internal error: %d new parts written with last id %d, expected %d with last id %d", added, last, n, want)
-	}
+	b.parts.reset()
+	b.variants = b.variants[:0]
 	return nil
 }
+
+// kindField is the index of the kind in a row.
+var kindField = fieldIndex["kind"]
+
+// kindVariant is the statement variant that writes row (see startBulk):
+// 1 + the index of its kind in Kinds when every field that does not apply
+// to the kind is NULL (as Prepare makes it), else 0, which names every
+// field, so that no value can be left out.
+func kindVariant(r row) uint8 {
+	k, _ := r[kindField].(string)
+	for v, kind := range Kinds {
+		if string(kind) != k {
+			continue
+		}
+		for _, i := range notOfKind[v] {
+			if r[i] != nil {
+				return 0
+			}
+		}
+		return uint8(v + 1)
+	}
+	return 0
+}
+
+// notOfKind lists, for each kind of Kinds, the fields that do not apply
+// to it.
+var notOfKind = func() [][]int {
+	out := make([][]int, len(Kinds))
+	for v, k := range Kinds {
+		for i, f := range Fields {
+			if !f.AppliesTo(k) {
+				out[v] = append(out[v], i)
+			}
+		}
+	}
+	return out
+}()
 
 // rawPrepare prepares q on the import's connection at the driver level.
 func (t *ImportTx) rawPrepare(q string) (driver.Stmt, error) {
@@ -1158,6 +1220,15 @@ func (t *ImportTx) Rollback() error {
 	return err
 }
 
-// SortKey returns the prepared part's identity key: its normalised part
-// number and maker (NormKey), the order of the catalog's identity index.
-func (pp *Prepared) SortKey() (string, string) { return pp.pk, pp.mk }
+// SortKey returns the prepared part's identity key, its normalised part
+// number and maker (NormKey), the order of the catalog's identity index,
+// and its kind (canonical). A batch of new parts is written one statement
+// per run of parts of one kind (see kindVariant), so a writer that puts a
+// batch's parts in order of kind first keeps those runs long.
+func (pp *Prepared) SortKey() (kind Kind, pk, mk string) {
+	if len(pp.row) <= kindField {
+		return "", pp.pk, pp.mk // not prepared
+	}
+	k, _ := pp.row[kindField].(string)
+	return Kind(k), pp.pk, pp.mk
+}

@@ -115,33 +115,31 @@ func (p *rowPipe) close() {
 
 // drain runs put on every item on the writer's goroutine and returns the
 // first error, of put or of the reader (fail). Within a batch, refused
-// rows come first, in row order, then the parts in the order of their
-// identity key (part number, maker; a stable sort, so of two rows with
-// one key the earlier is still put first, and the batches keep their
-// order): inserts next to each other in the identity index cost fewer
-// page reads and writes (see pipeBatch). It returns only after the reader
-// has ended, so nothing reads the sheet afterwards.
+// rows come first, in row order, then the parts grouped by kind, and in
+// each kind in the order of their identity key (part number, maker): rows
+// with one key keep their order, and all go in the group of the kind of
+// the first of them, so of two rows with one key the earlier is still put
+// first whatever their kinds, and the batches keep their order. Inserts
+// next to each other in the identity index cost fewer page reads and
+// writes (see pipeBatch), and the catalog writes a batch of new parts one
+// statement per run of one kind (catalog.Prepared.SortKey). It returns
+// only after the reader has ended, so nothing reads the sheet afterwards.
 func (p *rowPipe) drain(put func(*rowItem) error) error {
 	var err error
 	var ord []int
-	var keys [][2]string
+	var keys []sortKey
 	for b := range p.full {
 		if err == nil {
 			ord, keys = ord[:0], keys[:0]
 			for i := range b.items[:b.n] {
 				it := &b.items[i]
-				var k [2]string
+				var k sortKey
 				if it.part != nil && it.perr == nil && it.rej == nil {
-					k[0], k[1] = it.prep.SortKey()
+					k.kind, k.pk, k.mk = it.prep.SortKey()
 				}
 				ord, keys = append(ord, i), append(keys, k)
 			}
-			slices.SortStableFunc(ord, func(x, y int) int {
-				if c := strings.Compare(keys[x][0], keys[y][0]); c != 0 {
-					return c
-				}
-				return strings.Compare(keys[x][1], keys[y][1])
-			})
+			sortItems(ord, keys)
 			for _, i := range ord {
 				if err = put(&b.items[i]); err != nil {
 					break
@@ -160,4 +158,35 @@ func (p *rowPipe) drain(put func(*rowItem) error) error {
 		}
 	}
 	return err
+}
+
+// sortKey is what drain orders a batch's items by.
+type sortKey struct {
+	kind   catalog.Kind
+	pk, mk string
+	group  catalog.Kind // kind of the first item with this key
+}
+
+// sortItems orders ord (indexes into keys): by identity key (stable),
+// then, stably, by the kind of the first item of each key (refused items
+// have an empty key and kind, so they stay first in row order).
+func sortItems(ord []int, keys []sortKey) {
+	slices.SortStableFunc(ord, func(x, y int) int {
+		if c := strings.Compare(keys[x].pk, keys[y].pk); c != 0 {
+			return c
+		}
+		return strings.Compare(keys[x].mk, keys[y].mk)
+	})
+	for j, i := range ord {
+		k := &keys[i]
+		k.group = k.kind
+		if j > 0 {
+			if prev := &keys[ord[j-1]]; prev.pk == k.pk && prev.mk == k.mk {
+				k.group = prev.group
+			}
+		}
+	}
+	slices.SortStableFunc(ord, func(x, y int) int {
+		return strings.Compare(string(keys[x].group), string(keys[y].group))
+	})
 }

@@ -311,3 +311,29 @@ func TestDrainSortsBatchByKey(t *testing.T) {
 		t.Errorf("put order %v, want %v", got, want)
 	}
 }
+
+// The writer's order within a batch: refused rows first in row order,
+// then parts grouped by kind and by identity key within a kind; rows with
+// one key stay in row order in the group of the first one's kind, even
+// when a later row gives the part another kind.
+func TestSortItems(t *testing.T) {
+	keys := []sortKey{
+		{},                                 // 0 refused
+		{kind: "fuse", pk: "b", mk: "m"},   // 1
+		{kind: "diode", pk: "a", mk: "m"},  // 2
+		{kind: "diode", pk: "b", mk: "m"},  // 3 same key as 1, another kind
+		{},                                 // 4 refused
+		{kind: "mosfet", pk: "a", mk: "z"}, // 5
+		{kind: "diode", pk: "a", mk: "m"},  // 6 same key as 2
+		{kind: "fuse", pk: "c", mk: "m"},   // 7
+		{kind: "fuse", pk: "b", mk: "m"},   // 8 same key as 1 and 3
+	}
+	ord := make([]int, len(keys))
+	for i := range ord {
+		ord[i] = i
+	}
+	sortItems(ord, keys)
+	if got, want := fmt.Sprint(ord), "[0 4 2 6 1 3 8 7 5]"; got != want {
+		t.Errorf("order %s, want %s", got, want)
+	}
+}
