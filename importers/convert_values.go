@@ -30,6 +30,9 @@ var maxAbsentLen = func() int {
 
 // isAbsent reports a cell that means "no value".
 func isAbsent(s string) bool {
+	if s != "" && s[0] >= '0' && s[0] <= '9' {
+		return false // most cells are numbers, and no absent word starts with a digit
+	}
 	t := strings.TrimSpace(s)
 	if t == "" {
 		return true
