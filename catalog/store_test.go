@@ -79,6 +79,40 @@ func TestOpenCreatesSchema(t *testing.T) {
 	}
 }
 
+// An empty file (made by a user or a script before the first import) is a
+// new catalog too, with the catalog's page size; an existing catalog keeps
+// its own (SQLite documentation, "PRAGMA page_size").
+func TestOpenPageSize(t *testing.T) {
+	dir := t.TempDir()
+	empty := filepath.Join(dir, "empty.db")
+	if err := os.WriteFile(empty, nil, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	old := filepath.Join(dir, "old.db")
+	db, err := sql.Open("sqlite", "file:"+old)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := db.Exec(`PRAGMA page_size = 4096; PRAGMA journal_mode = WAL`); err != nil {
+		t.Fatal(err)
+	}
+	db.Close()
+	for _, c := range []struct {
+		path string
+		want int
+	}{{empty, pageSize}, {old, 4096}} { // old: an SQLite file with no table yet
+
+		s := openAt(t, c.path)
+		var ps int
+		if err := s.db.QueryRow(`PRAGMA page_size`).Scan(&ps); err != nil || ps != c.want {
+			t.Errorf("%s: page_size = %d, %v; want %d", filepath.Base(c.path), ps, err, c.want)
+		}
+		if c.path == empty && !s.New {
+			t.Error("an empty file: New = false")
+		}
+	}
+}
+
 func TestOpenRefusesNewerSchema(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "c.db")
 	s := openAt(t, path)
