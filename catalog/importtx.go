@@ -480,7 +480,8 @@ func appendArg(args []driver.NamedValue, v any) []driver.NamedValue {
 // column sets. The import time is written into the statement: constants
 // cost nothing per row, a bound value a call into SQLite.
 func (t *ImportTx) insertStmt(pp *Prepared) (driver.Stmt, error) {
-	if st := t.insPart[pp.mask]; st != nil {
+	pp.insertArgs()
+	if st := t.insPart[string(pp.buf)]; st != nil {
 		return st, nil
 	}
 	var cols, marks strings.Builder
@@ -496,7 +497,7 @@ func (t *ImportTx) insertStmt(pp *Prepared) (driver.Stmt, error) {
 	if err != nil {
 		return nil, err
 	}
-	t.insPart[pp.mask] = st
+	t.insPart[string(pp.buf)] = st
 	return st, nil
 }
 
@@ -525,18 +526,16 @@ type Prepared struct {
 	mk, pk string
 	row    row
 	offers []offerRow
-	mask   string              // which fields are present, one byte each: the INSERT to use
-	ins    []driver.NamedValue // the INSERT's arguments: mk, pk, the present values
+	ins    []driver.NamedValue // the row path's INSERT arguments (insertArgs)
 	buf    []byte
 }
 
 // A Preparer checks parts for an import ahead of the writes, so that an
 // importer can do that work on another goroutine than the one writing
 // (ImportTx.PutPrepared). A Preparer is used from one goroutine; it keeps
-// a small memo of supplier keys and field sets.
+// a small memo of supplier keys.
 type Preparer struct {
 	supKey map[string]string // supplier name -> NormKey
-	masks  map[string]string // field masks met so far, one string each
 }
 
 // Prepare checks p as Put does and writes its store form into dst,
@@ -555,29 +554,27 @@ func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
 	}
 	dst.p, dst.offers = p, offers
 	dst.mk, dst.pk = mk, pk
-	dst.buf = dst.buf[:0]
-	a := appendArg(appendArg(dst.ins[:0], dst.mk), dst.pk)
-	for _, v := range nr {
+	dst.ins = dst.ins[:0] // built by insertArgs when the part takes the row path
+	return nil
+}
+
+// insertArgs fills pp.buf with the mask of the fields present in pp (one
+// byte each, which INSERT to use) and pp.ins with that INSERT's
+// arguments: mk, pk, the present values. Only a part written by the row
+// path needs them (a batched part does not), so the writer builds them
+// there.
+func (pp *Prepared) insertArgs() {
+	pp.buf = pp.buf[:0]
+	a := appendArg(appendArg(pp.ins[:0], pp.mk), pp.pk)
+	for _, v := range pp.row {
 		if v == nil {
-			dst.buf = append(dst.buf, '0')
+			pp.buf = append(pp.buf, '0')
 			continue
 		}
-		dst.buf = append(dst.buf, '1')
+		pp.buf = append(pp.buf, '1')
 		a = appendArg(a, v)
 	}
-	dst.ins = a
-	if dst.mask != string(dst.buf) {
-		m, ok := pr.masks[string(dst.buf)]
-		if !ok {
-			if pr.masks == nil {
-				pr.masks = map[string]string{}
-			}
-			m = string(dst.buf)
-			pr.masks[m] = m
-		}
-		dst.mask = m
-	}
-	return nil
+	pp.ins = a
 }
 
 // Put inserts or updates p and its offers (p.Offers, matched on supplier
