@@ -3,6 +3,8 @@ package catalog
 import (
 	"context"
 	"errors"
+	"fmt"
+	"math"
 	"reflect"
 	"strings"
 	"testing"
@@ -345,5 +347,44 @@ func TestPutRepeatedNewPartInOneImport(t *testing.T) {
 	ps, _ := s.ByMPN(context.Background(), "LF-1A-F")
 	if len(ps) != 1 || len(ps[0].Offers) != 1 || *ps[0].Offers[0].Stock != 10 || ps[0].Offers[0].Breaks[0].Price != 0.2 {
 		t.Errorf("stored %+v", ps)
+	}
+}
+
+// Price breaks are stored as canonical JSON in ascending quantity, one
+// entry per quantity, whatever order the sheet gave them in; the caller's
+// slice is left as it was.
+func TestEncodeBreaks(t *testing.T) {
+	for _, c := range []struct {
+		in   []PriceBreak
+		want string
+		err  string
+	}{
+		{nil, "[]", ""},
+		{[]PriceBreak{{1, 0.25}, {100, 0.125}, {1000, 0.0625}}, "[[1,0.25],[100,0.125],[1000,0.0625]]", ""},
+		{[]PriceBreak{{1000, 0.0625}, {1, 0.25}, {100, 0.125}}, "[[1,0.25],[100,0.125],[1000,0.0625]]", ""},
+		{[]PriceBreak{{10, 0.5}, {1, 0.75}, {10, 0.5}}, "[[1,0.75],[10,0.5]]", ""},
+		{[]PriceBreak{{1, 0.1}, {5000, 1e-3}}, "[[1,0.1],[5000,0.001]]", ""},
+		{[]PriceBreak{{10, 1}, {10, 2}}, "", "price break quantity 10 is given twice with different prices"},
+		{[]PriceBreak{{0, 1}}, "", "price break quantity 0 is less than 1"},
+		{[]PriceBreak{{1, math.NaN()}}, "", "price NaN at quantity 1 is not a price"},
+		{[]PriceBreak{{1, -0.5}}, "", "price -0.5 at quantity 1 is not a price"},
+	} {
+		before := fmt.Sprint(c.in)
+		got, err := encodeBreaks(c.in)
+		if c.err != "" {
+			if err == nil || err.Error() != c.err {
+				t.Errorf("%v: error %v, want %q", c.in, err, c.err)
+			}
+			continue
+		}
+		if err != nil || got != c.want {
+			t.Errorf("%v: %q, %v; want %q", c.in, got, err, c.want)
+		}
+		if fmt.Sprint(c.in) != before {
+			t.Errorf("encodeBreaks changed its input: %v, was %s", c.in, before)
+		}
+		if back, err := decodeBreaks(got); err != nil || len(back) == 0 && len(c.in) > 0 {
+			t.Errorf("%q does not decode: %v %v", got, back, err)
+		}
 	}
 }

@@ -1,6 +1,7 @@
 package catalog
 
 import (
+	"cmp"
 	"context"
 	"database/sql"
 	"database/sql/driver"
@@ -8,7 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -909,20 +910,31 @@ func (pr *Preparer) normOffers(p *Part, out []offerRow) ([]offerRow, error) {
 // encodeBreaks validates price breaks and writes them as canonical JSON
 // [[qty, price], ...] in ascending quantity.
 func encodeBreaks(bs []PriceBreak) (string, error) {
-	s := append([]PriceBreak(nil), bs...)
-	sort.SliceStable(s, func(i, j int) bool { return s[i].Qty < s[j].Qty })
-	var b []byte
+	var buf [96]byte
+	b, err := appendBreaks(buf[:0], bs)
+	return string(b), err
+}
+
+// appendBreaks appends encodeBreaks's text to b. Breaks already in
+// ascending quantity (as importers give them) are neither copied nor
+// sorted.
+func appendBreaks(b []byte, bs []PriceBreak) ([]byte, error) {
+	s := bs
+	if !slices.IsSortedFunc(bs, func(x, y PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }) {
+		s = append([]PriceBreak(nil), bs...)
+		slices.SortStableFunc(s, func(x, y PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) })
+	}
 	b = append(b, '[')
 	for i, x := range s {
 		if x.Qty < 1 {
-			return "", fmt.Errorf("price break quantity %d is less than 1", x.Qty)
+			return b, fmt.Errorf("price break quantity %d is less than 1", x.Qty)
 		}
 		if math.IsNaN(x.Price) || math.IsInf(x.Price, 0) || x.Price < 0 {
-			return "", fmt.Errorf("price %v at quantity %d is not a price", x.Price, x.Qty)
+			return b, fmt.Errorf("price %v at quantity %d is not a price", x.Price, x.Qty)
 		}
 		if i > 0 && s[i-1].Qty == x.Qty {
 			if s[i-1].Price != x.Price {
-				return "", fmt.Errorf("price break quantity %d is given twice with different prices", x.Qty)
+				return b, fmt.Errorf("price break quantity %d is given twice with different prices", x.Qty)
 			}
 			continue
 		}
@@ -935,8 +947,7 @@ func encodeBreaks(bs []PriceBreak) (string, error) {
 		b = strconv.AppendFloat(b, x.Price, 'g', -1, 64)
 		b = append(b, ']')
 	}
-	b = append(b, ']')
-	return string(b), nil
+	return append(b, ']'), nil
 }
 
 func decodeBreaks(s string) ([]PriceBreak, error) {
