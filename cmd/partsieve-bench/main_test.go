@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"database/sql"
+	"encoding/json"
 	"fmt"
 	"io"
 	"os"
@@ -321,5 +322,72 @@ func TestReportShellReferences(t *testing.T) {
 	report(&buf, r, nil, 1000, 100)
 	if strings.Contains(buf.String(), "same key") {
 		t.Errorf("keyed line without a keyed figure:\n%s", buf.String())
+	}
+}
+
+// TestImportUsablePhase: the pairs' import phase reports parts usable and
+// ends the process at the commit, before the text index; the shell's pair
+// phase reports the .import alone. The import phase runs in a child (this
+// test binary again), since it ends its process.
+func TestImportUsablePhase(t *testing.T) {
+	if dir := os.Getenv("PARTSIEVE_BENCH_HELPER_DIR"); dir != "" {
+		runPhase("import-usable", dir, 300, 100, 1, 3)
+		t.Fatal("the import-usable phase returned instead of ending the process")
+	}
+	dir := t.TempDir()
+	if _, err := runPhase("gen", dir, 300, 100, 1, 3); err != nil {
+		t.Fatal(err)
+	}
+	cmd := exec.Command(os.Args[0], "-test.run=^TestImportUsablePhase$")
+	cmd.Env = append(os.Environ(), "PARTSIEVE_BENCH_HELPER_DIR="+dir)
+	out, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("child: %v\n%s", err, out)
+	}
+	var r results
+	if err := json.Unmarshal(out, &r); err != nil || len(r) != 1 || r["import_usable_s"] <= 0 {
+		t.Fatalf("child printed %q (%v); want one figure, import_usable_s", out, err)
+	}
+	st, err := catalog.Open(context.Background(), catPath(dir))
+	if err != nil {
+		t.Fatal(err)
+	}
+	stats, err := st.Stats(context.Background())
+	st.Close()
+	if err != nil || stats.Parts != 300 {
+		t.Errorf("catalog after the phase: %d parts, %v; want 300", stats.Parts, err)
+	}
+	if _, err := exec.LookPath("sqlite3"); err != nil {
+		return
+	}
+	r, err = runPhase("sqlite3-pair", dir, 300, 100, 1, 3)
+	if err != nil || len(r) != 1 || r["sqlite3_import_s"] <= 0 {
+		t.Errorf("sqlite3-pair: %v, %v", r, err)
+	}
+}
+
+// TestReportPairs: with pairs, the summary gives the medians and the
+// verdict on the median of the pairs' ratios, and every pair.
+func TestReportPairs(t *testing.T) {
+	r := results{"import_usable_s": 21, "import_ready_s": 40, "sqlite3_import_s": 10, "sqlite3_fixup_s": 4}
+	for i, p := range [][2]float64{{21, 10}, {18, 10}, {19, 10}} {
+		r[pairKey("usable", i+1)], r[pairKey("import", i+1)] = p[0], p[1]
+	}
+	var buf bytes.Buffer
+	report(&buf, r, nil, 1000, 100)
+	out := buf.String()
+	for _, want := range []string{
+		"MISS (2.10×)", // the first run alone
+		"the same over 3 pairs run one after the other",
+		"median 19.00 s", ".import median 10.00 s",
+		"PASS (median ratio 1.90×)", // ratios 2.1, 1.8, 1.9
+		"21.00/10.00 s = 2.10×; 18.00/10.00 s = 1.80×; 19.00/10.00 s = 1.90×",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("report lacks %q:\n%s", want, out)
+		}
+	}
+	if m := median([]float64{3, 1, 2, 4}); m != 2.5 {
+		t.Errorf("median of 1..4 = %v", m)
 	}
 }

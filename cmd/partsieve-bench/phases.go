@@ -38,9 +38,13 @@ func runPhase(name, dir string, rows, xrows int, seed uint64, reps int) (results
 	case "gen":
 		return phaseGen(dir, rows, xrows, seed)
 	case "import":
-		return phaseImport(ctx, dir)
+		return phaseImport(ctx, dir, false)
+	case "import-usable":
+		return phaseImport(ctx, dir, true)
 	case "sqlite3":
-		return phaseSQLite3(dir)
+		return phaseSQLite3(dir, false)
+	case "sqlite3-pair":
+		return phaseSQLite3(dir, true)
 	case "sqlite3-keyed":
 		return phaseSQLite3Keyed(dir)
 	case "driver":
@@ -88,8 +92,10 @@ func phaseGen(dir string, rows, xrows int, seed uint64) (results, error) {
 // phaseImport imports the CSV into a new catalog. A second connection
 // polls the catalog generation every 5 ms: it changes in the import's
 // transaction, so the first poll that sees it marks the moment the parts
-// became usable by other processes.
-func phaseImport(ctx context.Context, dir string) (results, error) {
+// became usable by other processes. With stopAtUsable (the pairs), the
+// process reports and ends at that moment, leaving the text index
+// unfinished.
+func phaseImport(ctx context.Context, dir string, stopAtUsable bool) (results, error) {
 	path := catPath(dir)
 	os.Remove(path)
 	os.RemoveAll(path + ".bleve")
@@ -117,7 +123,12 @@ func phaseImport(ctx context.Context, dir string) (results, error) {
 			}
 			var gen string
 			if db.QueryRow(`SELECT value FROM meta WHERE key = 'generation'`).Scan(&gen) == nil && gen != "0" {
-				usable.Store(int64(time.Since(t0)))
+				u := time.Since(t0)
+				usable.Store(int64(u))
+				if stopAtUsable {
+					json.NewEncoder(os.Stdout).Encode(results{"import_usable_s": u.Seconds()})
+					os.Exit(0)
+				}
 				return
 			}
 		}
@@ -212,7 +223,7 @@ func firstLines(s string, n int) string {
 // (shellSchema) with no key and no index, with the pragmas of
 // LIBRARIES.md, then the NULLIF fix-up of empty cells (timed apart) and
 // the indexes the find comparison uses (untimed).
-func phaseSQLite3(dir string) (results, error) {
+func phaseSQLite3(dir string, importOnly bool) (results, error) {
 	bin, err := exec.LookPath("sqlite3")
 	if err != nil {
 		return results{}, nil // reported as absent
@@ -229,6 +240,9 @@ func phaseSQLite3(dir string) (results, error) {
 	imp, rss, _, _, err := shellRun(bin, db, ".import --csv --skip 1 "+csvPath(dir)+" parts")
 	if err != nil {
 		return nil, err
+	}
+	if importOnly {
+		return results{"sqlite3_import_s": imp.Seconds()}, nil
 	}
 	fixup, _, _, _, err := shellRun(bin, db, "UPDATE parts SET "+strings.Join(fix, ", "))
 	if err != nil {
