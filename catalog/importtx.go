@@ -386,7 +386,7 @@ func (t *ImportTx) flushBulk() error {
 			return err
 		}
 		if want := bt.vals[(hi-1)*bt.ncol].(int64); added != int64(hi-lo) || last != want {
-			return fmt.Errorf("internal error: %d new parts written with last id %d, expected %d with last id %d", added, last, hi-lo, want)
+			return fmt.Errorf("internal error: rows %d–%d of a batch (statement variant %d): %d new parts written with last id %d, expected %d with last id %d", lo, hi-1, v, added, last, hi-lo, want)
 		}
 		lo = hi
 	}
@@ -607,7 +607,8 @@ func (t *ImportTx) Put(p *Part) (Outcome, []Change, error) {
 
 // PutPrepared is Put of a part checked by a Preparer (any Preparer, on any
 // goroutine). The part must not change between Prepare and PutPrepared;
-// pp may be reused once PutPrepared returns.
+// PutPrepared writes into pp (the row path's arguments), so nothing else
+// may read or write pp meanwhile; pp may be reused once it returns.
 func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 	if t.done {
 		return 0, nil, errFinished
@@ -912,7 +913,10 @@ func (pr *Preparer) normOffers(p *Part, out []offerRow) ([]offerRow, error) {
 func encodeBreaks(bs []PriceBreak) (string, error) {
 	var buf [96]byte
 	b, err := appendBreaks(buf[:0], bs)
-	return string(b), err
+	if err != nil {
+		return "", err
+	}
+	return string(b), nil
 }
 
 // appendBreaks appends encodeBreaks's text to b. Breaks already in

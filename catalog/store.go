@@ -35,7 +35,8 @@ var busyTimeout = 10 * time.Second
 // with a clear message.
 type Store struct {
 	Path string
-	// New is true when Open created the database file (the caller seeds it).
+	// New is true when Open created the database file, or found one with
+	// nothing in it yet (the caller seeds it).
 	New bool
 	// Notify, when set, receives one-line notices about slow or degraded
 	// work: a text index rebuild, a text index held by another process.
@@ -301,6 +302,11 @@ func (s *Store) prepare(ctx context.Context, path string) error {
 	}
 	if ver == 0 && tables > 0 {
 		return fmt.Errorf("file %s is not a partsieve catalog: it is an SQLite database holding other tables", path)
+	}
+	if ver == 0 && tables == 0 {
+		// an SQLite file with nothing in it yet: a first Open that stopped
+		// after making the file and before its schema was committed
+		s.New = true
 	}
 	if ver > 0 && app != "partsieve" {
 		return fmt.Errorf("file %s is not a partsieve catalog: it has no partsieve marker (schema version %d)", path, ver)
