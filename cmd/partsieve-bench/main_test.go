@@ -345,8 +345,8 @@ func TestImportUsablePhase(t *testing.T) {
 		t.Fatalf("child: %v\n%s", err, out)
 	}
 	var r results
-	if err := json.Unmarshal(out, &r); err != nil || len(r) != 1 || r["import_usable_s"] <= 0 {
-		t.Fatalf("child printed %q (%v); want one figure, import_usable_s", out, err)
+	if err := json.Unmarshal(out, &r); err != nil || len(r) != 2 || r["import_usable_s"] <= 0 || r["import_added"] != 300 {
+		t.Fatalf("child printed %q (%v); want import_usable_s and import_added 300", out, err)
 	}
 	st, err := catalog.Open(context.Background(), catPath(dir))
 	if err != nil {
@@ -361,7 +361,7 @@ func TestImportUsablePhase(t *testing.T) {
 		return
 	}
 	r, err = runPhase("sqlite3-pair", dir, 300, 100, 1, 3)
-	if err != nil || len(r) != 2 || r["sqlite3_import_s"] <= 0 || r["sqlite3_import_s"] > r["sqlite3_import_total_s"] {
+	if err != nil || len(r) != 3 || r["sqlite3_import_s"] <= 0 || r["sqlite3_import_s"] > r["sqlite3_import_total_s"] {
 		t.Errorf("sqlite3-pair: %v, %v; want the time to the commit, at most the whole command's", r, err)
 	}
 }
@@ -386,6 +386,12 @@ func TestReportPairs(t *testing.T) {
 		if !strings.Contains(out, want) {
 			t.Errorf("report lacks %q:\n%s", want, out)
 		}
+	}
+	r["sqlite3_commit_unseen"] = 2
+	buf.Reset()
+	report(&buf, r, nil, 1000, 100)
+	if !strings.Contains(buf.String(), "[2 run(s): commit not seen, whole command used]") {
+		t.Errorf("report does not say that the shell's commit was not seen:\n%s", buf.String())
 	}
 	if m := median([]float64{3, 1, 2, 4}); m != 2.5 {
 		t.Errorf("median of 1..4 = %v", m)
