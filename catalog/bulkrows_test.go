@@ -302,8 +302,8 @@ func TestKindVariant(t *testing.T) {
 			t.Fatalf("SortKey kind %q, part kind %q", k, p.Kind)
 		}
 		v := kindVariant(pp.row)
-		if v == 0 || Kinds[v-1] != p.Kind {
-			t.Fatalf("%s %s: variant %d", p.Kind, p.MPN, v)
+		if v == 0 || Kinds[v-1] != p.Kind || pp.variant != v {
+			t.Fatalf("%s %s: variant %d, Prepare's %d", p.Kind, p.MPN, v, pp.variant)
 		}
 		seen[p.Kind] = true
 		r := append(row(nil), pp.row...)

@@ -335,7 +335,7 @@ func (t *ImportTx) bulkAdd(pp *Prepared) (Outcome, []Change, error) {
 	id := b.nextID
 	b.nextID++
 	b.parts.batch.vals = append(append(b.parts.batch.vals, id, pp.mk, pp.pk), pp.row...)
-	b.variants = append(b.variants, kindVariant(pp.row))
+	b.variants = append(b.variants, pp.variant)
 	b.filter.add(pp.pk, pp.mk)
 	if err := t.noteNew(id, pp.offers); err != nil {
 		return 0, nil, t.fail(err)
@@ -523,12 +523,13 @@ var textFields = map[string]bool{"kind": true, "type": true, "mfr": true, "mpn":
 // ready for ImportTx.PutPrepared. Its buffers are reused by the next
 // Prepare into it.
 type Prepared struct {
-	p      *Part
-	mk, pk string
-	row    row
-	offers []offerRow
-	ins    []driver.NamedValue // the row path's INSERT arguments (insertArgs)
-	buf    []byte
+	p       *Part
+	mk, pk  string
+	row     row
+	offers  []offerRow
+	ins     []driver.NamedValue // the row path's INSERT arguments (insertArgs)
+	buf     []byte
+	variant uint8 // statement variant of a batched write (kindVariant)
 }
 
 // A Preparer checks parts for an import ahead of the writes, so that an
@@ -556,6 +557,7 @@ func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
 	dst.p, dst.offers = p, offers
 	dst.mk, dst.pk = mk, pk
 	dst.ins = dst.ins[:0] // built by insertArgs when the part takes the row path
+	dst.variant = kindVariant(nr)
 	return nil
 }
 
@@ -910,35 +912,27 @@ func (pr *Preparer) normOffers(p *Part, out []offerRow) ([]offerRow, error) {
 
 // encodeBreaks validates price breaks and writes them as canonical JSON
 // [[qty, price], ...] in ascending quantity.
+// Breaks already in ascending quantity (as importers give them) are
+// neither copied nor sorted, and the text is built in a stack buffer.
 func encodeBreaks(bs []PriceBreak) (string, error) {
-	var buf [96]byte
-	b, err := appendBreaks(buf[:0], bs)
-	if err != nil {
-		return "", err
-	}
-	return string(b), nil
-}
-
-// appendBreaks appends encodeBreaks's text to b. Breaks already in
-// ascending quantity (as importers give them) are neither copied nor
-// sorted.
-func appendBreaks(b []byte, bs []PriceBreak) ([]byte, error) {
+	byQty := func(x, y PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }
 	s := bs
-	if !slices.IsSortedFunc(bs, func(x, y PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }) {
+	if !slices.IsSortedFunc(bs, byQty) {
 		s = append([]PriceBreak(nil), bs...)
-		slices.SortStableFunc(s, func(x, y PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) })
+		slices.SortStableFunc(s, byQty)
 	}
-	b = append(b, '[')
+	var buf [96]byte
+	b := append(buf[:0], '[')
 	for i, x := range s {
 		if x.Qty < 1 {
-			return b, fmt.Errorf("price break quantity %d is less than 1", x.Qty)
+			return "", fmt.Errorf("price break quantity %d is less than 1", x.Qty)
 		}
 		if math.IsNaN(x.Price) || math.IsInf(x.Price, 0) || x.Price < 0 {
-			return b, fmt.Errorf("price %v at quantity %d is not a price", x.Price, x.Qty)
+			return "", fmt.Errorf("price %v at quantity %d is not a price", x.Price, x.Qty)
 		}
 		if i > 0 && s[i-1].Qty == x.Qty {
 			if s[i-1].Price != x.Price {
-				return b, fmt.Errorf("price break quantity %d is given twice with different prices", x.Qty)
+				return "", fmt.Errorf("price break quantity %d is given twice with different prices", x.Qty)
 			}
 			continue
 		}
@@ -951,7 +945,7 @@ func appendBreaks(b []byte, bs []PriceBreak) ([]byte, error) {
 		b = strconv.AppendFloat(b, x.Price, 'g', -1, 64)
 		b = append(b, ']')
 	}
-	return append(b, ']'), nil
+	return string(append(b, ']')), nil
 }
 
 func decodeBreaks(s string) ([]PriceBreak, error) {
