@@ -39,9 +39,7 @@ func phaseDriver(dir string) (results, error) {
 		}
 		db := filepath.Join(dir, "driver.db")
 		d, n, err := driverImport(csvPath(dir), db, cols, len(header), batched)
-		os.Remove(db)
-		os.Remove(db + "-wal")
-		os.Remove(db + "-shm")
+		removeDB(db)
 		if err != nil {
 			return nil, fmt.Errorf("%s: %w", name, err)
 		}
@@ -56,7 +54,7 @@ func phaseDriver(dir string) (results, error) {
 // the rows written.
 func driverImport(path, db string, cols []string, ncol int, batched bool) (time.Duration, int, error) {
 	ctx := context.Background()
-	os.Remove(db)
+	removeDB(db)
 	f, err := os.Open(path)
 	if err != nil {
 		return 0, 0, err

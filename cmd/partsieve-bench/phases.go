@@ -97,9 +97,7 @@ func phaseGen(dir string, rows, xrows int, seed uint64) (results, error) {
 // unfinished.
 func phaseImport(ctx context.Context, dir string, stopAtUsable bool) (results, error) {
 	path := catPath(dir)
-	for _, sfx := range []string{"", "-wal", "-shm"} {
-		os.Remove(path + sfx)
-	}
+	removeDB(path)
 	os.RemoveAll(path + ".bleve")
 	st, err := catalog.Open(ctx, path)
 	if err != nil {
@@ -218,6 +216,25 @@ func shellRun(bin, db string, args ...string) (d time.Duration, rss float64, std
 	return d, rss, out.Bytes(), errOut.Bytes(), nil
 }
 
+// shellTimes is what shellImport measured.
+type shellTimes struct {
+	committed, total time.Duration
+	// unseen: the poller did not see the commit while the shell ran (a
+	// command shorter than a few polls, the tests' small files);
+	// committed is then the whole command's time
+	unseen bool
+	rss    float64
+	warn   []byte // the shell's standard error
+}
+
+// unseenFlag is the unseen figure of a phase's results: 1 or 0.
+func (st shellTimes) unseenFlag() float64 {
+	if st.unseen {
+		return 1
+	}
+	return 0
+}
+
 // shellImport runs the shell's .import of csv into the table parts of db
 // (empty, in WAL mode) and times it twice: until its commit is visible to
 // another connection, polled every 5 ms as phaseImport polls the catalog
@@ -225,10 +242,11 @@ func shellRun(bin, db string, args ...string) (d time.Duration, rss float64, std
 // holds the shell's checkpoints after the commit (the automatic one, and
 // the one when it closes the database: the import's pages copied from the
 // WAL into the file and synced), work that parts usable does not hold.
-func shellImport(bin, db, csv string) (committed, total time.Duration, rss float64, warn []byte, err error) {
+func shellImport(bin, db, csv string) (shellTimes, error) {
+	var st shellTimes
 	poll, err := sql.Open("sqlite", "file:"+db+"?_pragma=busy_timeout(5000)")
 	if err != nil {
-		return 0, 0, 0, nil, err
+		return st, err
 	}
 	defer poll.Close()
 	has := func() bool {
@@ -236,7 +254,7 @@ func shellImport(bin, db, csv string) (committed, total time.Duration, rss float
 		return poll.QueryRow(`SELECT EXISTS (SELECT 1 FROM parts)`).Scan(&ok) == nil && ok
 	}
 	if has() {
-		return 0, 0, 0, nil, fmt.Errorf("%s: the table is not empty before the .import", db)
+		return st, fmt.Errorf("%s: the table is not empty before the .import", db)
 	}
 	var seen atomic.Int64
 	stop, done := make(chan struct{}), make(chan struct{})
@@ -259,25 +277,27 @@ func shellImport(bin, db, csv string) (committed, total time.Duration, rss float
 			}
 		}
 	}()
-	total, rss, _, warn, err = shellRun(bin, db, ".import --csv --skip 1 "+csv+" parts")
+	st.total, st.rss, _, st.warn, err = shellRun(bin, db, ".import --csv --skip 1 "+csv+" parts")
 	close(stop)
 	<-done
 	if err != nil {
-		return 0, 0, 0, nil, err
+		return st, err
 	}
-	committed = time.Duration(seen.Load())
-	if committed == 0 || committed > total {
-		// a command shorter than a few polls (the tests' small files):
-		// the poller saw the commit only after the shell ended, or not at
-		// all; the commit time is known only to be within the command
-		return total, total, rss, warn, errUnseen
+	// a commit seen only after the shell ended (or never) is known only
+	// to be within the command
+	st.committed = time.Duration(seen.Load())
+	if st.committed == 0 || st.committed > st.total {
+		st.committed, st.unseen = st.total, true
 	}
-	return committed, total, rss, warn, nil
+	return st, nil
 }
 
-// errUnseen: the poller did not see the shell's commit before the shell
-// ended; the time given is the whole command's.
-var errUnseen = errors.New("the shell's commit was not seen before it ended")
+// removeDB removes an SQLite database with its WAL and shared-memory files.
+func removeDB(path string) {
+	for _, sfx := range []string{"", "-wal", "-shm"} {
+		os.Remove(path + sfx)
+	}
+}
 
 // firstLines is the first n lines of s, "..." marking a cut.
 func firstLines(s string, n int) string {
@@ -302,22 +322,17 @@ func phaseSQLite3(dir string, importOnly bool) (results, error) {
 		return nil, err
 	}
 	db := shellDB(dir)
-	for _, sfx := range []string{"", "-wal", "-shm"} {
-		os.Remove(db + sfx)
-	}
+	removeDB(db)
 	if _, _, _, _, err := shellRun(bin, db, "CREATE TABLE parts ("+strings.Join(cols, ", ")+")"); err != nil {
 		return nil, fmt.Errorf("sqlite3 create: %w", err)
 	}
-	imp, total, rss, _, err := shellImport(bin, db, csvPath(dir))
-	unseen := 0.0
-	if errors.Is(err, errUnseen) {
-		err, unseen = nil, 1
-	}
+	imp, err := shellImport(bin, db, csvPath(dir))
 	if err != nil {
 		return nil, err
 	}
+	r := results{"sqlite3_import_s": imp.committed.Seconds(), "sqlite3_import_total_s": imp.total.Seconds(), "sqlite3_commit_unseen": imp.unseenFlag()}
 	if importOnly {
-		return results{"sqlite3_import_s": imp.Seconds(), "sqlite3_import_total_s": total.Seconds(), "sqlite3_commit_unseen": unseen}, nil
+		return r, nil
 	}
 	fixup, _, _, _, err := shellRun(bin, db, "UPDATE parts SET "+strings.Join(fix, ", "))
 	if err != nil {
@@ -326,8 +341,8 @@ func phaseSQLite3(dir string, importOnly bool) (results, error) {
 	if _, _, _, _, err := shellRun(bin, db, "CREATE INDEX p_kind ON parts(kind, vds, rdson); CREATE INDEX p_vrrm ON parts(kind, vrrm); CREATE INDEX p_mpn ON parts(mpn COLLATE NOCASE); CREATE INDEX p_mfr ON parts(mfr, mpn);"); err != nil {
 		return nil, err
 	}
-	return results{"sqlite3_import_s": imp.Seconds(), "sqlite3_import_total_s": total.Seconds(), "sqlite3_commit_unseen": unseen,
-		"sqlite3_fixup_s": fixup.Seconds(), "sqlite3_peak_mb": rss}, nil
+	r["sqlite3_fixup_s"], r["sqlite3_peak_mb"] = fixup.Seconds(), imp.rss
+	return r, nil
 }
 
 // keyedParamIndexes is a copy of the catalog's partial parametric indexes
@@ -455,22 +470,16 @@ func phaseSQLite3Keyed(dir string) (results, error) {
 		return nil, err
 	}
 	db := shellKeyedDB(dir)
-	for _, sfx := range []string{"", "-wal", "-shm"} {
-		os.Remove(db + sfx)
-	}
+	removeDB(db)
 	if _, _, _, _, err := shellRun(bin, db, keyedDDL(cols)); err != nil {
 		return nil, fmt.Errorf("sqlite3 create keyed table: %w", err)
 	}
-	imp, total, rss, warn, err := shellImport(bin, db, csvPath(dir))
-	keyedUnseen := 0.0
-	if errors.Is(err, errUnseen) {
-		err, keyedUnseen = nil, 1
-	}
+	imp, err := shellImport(bin, db, csvPath(dir))
 	if err != nil {
 		return nil, fmt.Errorf("keyed .import: %w", err)
 	}
-	if len(warn) > 0 {
-		return nil, fmt.Errorf("keyed .import of %s refused rows: %s", csvPath(dir), firstLines(string(warn), 5))
+	if len(imp.warn) > 0 {
+		return nil, fmt.Errorf("keyed .import of %s refused rows: %s", csvPath(dir), firstLines(string(imp.warn), 5))
 	}
 	// the journal_mode pragma prints "wal" first: the count is the last line
 	_, _, out, _, err := shellRun(bin, db, "SELECT count(*) FROM parts")
@@ -492,7 +501,7 @@ func phaseSQLite3Keyed(dir string) (results, error) {
 	if err != nil {
 		return nil, fmt.Errorf("keyed fix-up: %w", err)
 	}
-	return results{"sqlite3_keyed_import_s": imp.Seconds(), "sqlite3_keyed_import_total_s": total.Seconds(), "sqlite3_keyed_commit_unseen": keyedUnseen, "sqlite3_keyed_fixup_s": fixup.Seconds(), "sqlite3_keyed_peak_mb": rss,
+	return results{"sqlite3_keyed_import_s": imp.committed.Seconds(), "sqlite3_keyed_import_total_s": imp.total.Seconds(), "sqlite3_keyed_commit_unseen": imp.unseenFlag(), "sqlite3_keyed_fixup_s": fixup.Seconds(), "sqlite3_keyed_peak_mb": imp.rss,
 		"sqlite3_keyed_rows": float64(n), "sqlite3_keyed_index_entries": float64(entries), "sqlite3_keyed_blank_entries": float64(blanks)}, nil
 }
 
@@ -568,7 +577,7 @@ func phaseBleve(dir string) (results, error) {
 
 func phaseXLSX(ctx context.Context, dir string) (results, error) {
 	path := filepath.Join(dir, "xlsx.db")
-	os.Remove(path)
+	removeDB(path)
 	os.RemoveAll(path + ".bleve")
 	st, err := catalog.Open(ctx, path)
 	if err != nil {
