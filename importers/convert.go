@@ -136,6 +136,15 @@ func (lo *layout) headerOf(target string) string {
 
 // convert turns one data row into a part, or says why the row is refused.
 func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
+	return cv.convertInto(cells, new(catalog.Part))
+}
+
+// convertInto is convert writing into p, whatever p held before: its
+// number map and offer slice are emptied and reused, so that a reader
+// converting row after row into the same few parts allocates neither
+// (the map alone was a kilobyte a row, a third of an import's garbage
+// at a million rows). On a refused row p is left partly filled.
+func (cv *converter) convertInto(cells []string, p *catalog.Part) (*catalog.Part, *rowReject) {
 	lo := cv.lo
 	r := row{cells: cells, lo: lo}
 
@@ -155,7 +164,13 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 	if rej != nil {
 		return nil, rej
 	}
-	p := &catalog.Part{Kind: kind, Type: typ, Mfr: cleanSpaces(mfr), MPN: cleanSpaces(mpn), Num: make(map[string]float64, cv.numHint)}
+	num, offers := p.Num, p.Offers[:0]
+	if num == nil {
+		num = make(map[string]float64, cv.numHint)
+	} else {
+		clear(num)
+	}
+	*p = catalog.Part{Kind: kind, Type: typ, Mfr: cleanSpaces(mfr), MPN: cleanSpaces(mpn), Num: num}
 	defer func() { cv.numHint = max(cv.numHint, len(p.Num)) }()
 	if cv.fedBy == nil {
 		cv.fedBy, cv.fedCols = map[string]int{}, make([]bool, len(lo.cols))
@@ -315,7 +330,7 @@ func (cv *converter) convert(cells []string) (*catalog.Part, *rowReject) {
 		return nil, rej
 	}
 	if o != nil {
-		p.Offers = []catalog.Offer{*o}
+		p.Offers = append(offers, *o)
 	}
 	return p, nil
 }

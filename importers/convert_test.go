@@ -215,6 +215,17 @@ func TestConvertGoodRows(t *testing.T) {
 				t.Errorf("rohs/aecq = %v/%v, want %v/%v", deref(p.RoHS), deref(p.AECQ), deref(tc.want.RoHS), deref(tc.want.AECQ))
 			}
 			checkNums(t, tc.name, p, tc.nums)
+			// the same row converted into a part that held another row
+			// gives the same part (convertInto clears what it reuses)
+			stale := &catalog.Part{Kind: catalog.Fuse, Type: "T", Mfr: "Old", MPN: "O1", Desc: "stale", Package: "P", Datasheet: "d",
+				Lifecycle: "eol", RoHS: ptr(false), AECQ: ptr(true), FuseStd: "ul", Rerate: "25:1",
+				Num:    map[string]float64{"vrrm": 1, "in": 3, "pd": 99},
+				Offers: []catalog.Offer{{Supplier: "stale", SKU: "S", MOQ: 7}, {Supplier: "stale2"}}}
+			if q, rej := cv.convertInto(tc.cells, stale); rej != nil {
+				t.Errorf("into a used part: rejected: %s", rej.reason)
+			} else if q != stale || !reflect.DeepEqual(*q, *p) {
+				t.Errorf("into a used part:\n got %+v\nwant %+v", *q, *p)
+			}
 			switch {
 			case tc.offer == nil && len(p.Offers) > 0:
 				t.Errorf("offer %+v, want none", p.Offers[0])
@@ -300,6 +311,13 @@ func FuzzConvertRow(f *testing.F) {
 	f.Fuzz(func(t *testing.T, header, cells string) {
 		cv := newConverter(strings.Split(header, "|"), "")
 		p, rej := cv.convert(strings.Split(cells, "|"))
+		// converting into a part that held another row decides alike
+		stale := &catalog.Part{Kind: catalog.MOSFET, Type: "n", Mfr: "Old", MPN: "O1", Desc: "stale", RoHS: ptr(true),
+			FuseStd: "iec", Num: map[string]float64{"vds": 30, "in": 2}, Offers: []catalog.Offer{{Supplier: "stale"}}}
+		q, rej2 := cv.convertInto(strings.Split(cells, "|"), stale)
+		if (rej == nil) != (rej2 == nil) || rej != nil && *rej != *rej2 || rej == nil && !reflect.DeepEqual(*p, *q) {
+			t.Fatalf("convert and convertInto a used part differ:\n%+v %+v\n%+v %+v", p, rej, q, rej2)
+		}
 		if rej != nil {
 			if rej.reason == "" {
 				t.Fatal("reject without a reason")

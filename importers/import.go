@@ -428,6 +428,10 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 	// writes on this one; batches of rows pass through a bounded channel
 	// and come back for reuse, so memory stays flat whatever the file's
 	// size. Rows, rejects and counts keep the sheet's order.
+	if r, ok := tbl.(rowReuser); ok {
+		// from here on, each row is done with before the next is read
+		r.reuseRows()
+	}
 	ps, prepared := rn.out.(preparedSink)
 	pipe := newRowPipe()
 	go func() {
@@ -461,7 +465,7 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 				return false // the writer stopped
 			}
 			it.row = row
-			p, rej := cv.convert(cells)
+			p, rej := cv.convertInto(cells, &it.buf)
 			if rej != nil {
 				it.rej = rej
 				return true
@@ -513,6 +517,10 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 	rn.sum.Ignored = append(rn.sum.Ignored, rn.prefix(name, cv.notApplicableNotes())...)
 	return true, nil
 }
+
+// rowReuser is a Table that can hand out each row in a buffer it reuses
+// for the next (textTable.reuseRows).
+type rowReuser interface{ reuseRows() }
 
 func (rn *run) prefix(sheet string, items []string) []string {
 	if !rn.multi {

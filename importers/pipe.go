@@ -13,6 +13,7 @@ import (
 type rowItem struct {
 	row  int
 	part *catalog.Part
+	buf  catalog.Part     // what part points to when the reader converted into it (reused)
 	prep catalog.Prepared // part in the store's form (preparedSink only)
 	perr error            // the catalog refused the part (ErrInvalidPart)
 	rej  *rowReject       // the row was refused while converting

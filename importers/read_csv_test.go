@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"testing"
 	"unicode/utf8"
@@ -417,4 +418,56 @@ func TestReadBlankAfterHead(t *testing.T) {
 	rows := readAllRows(t, "late.csv", data)
 	want := []readRow{{70<<10 + 1, []string{"mpn", "v"}}, {70<<10 + 2, []string{"D1", "2"}}}
 	readCompare(t, "late.csv", rows, want)
+}
+
+// TestReadTextReuseRows: after reuseRows a text table hands out each row
+// in the CSV reader's own slice (no copy: the next row lands in the same
+// array) with the same cells as the copying reader, and rows returned
+// before the switch are copies that later reads leave alone.
+func TestReadTextReuseRows(t *testing.T) {
+	data := readFixture(t, "pipe.csv")
+	b, err := readOpen("pipe.csv", data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer b.Close()
+	want, err := readTable(b, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(want) < 3 {
+		t.Fatalf("fixture has %d rows, want at least 3", len(want))
+	}
+	tbl, err := b.Table("")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer tbl.Close()
+	r, ok := tbl.(rowReuser)
+	if !ok {
+		t.Fatalf("%T cannot reuse its rows", tbl)
+	}
+	first, _, err := tbl.Next()
+	if err != nil {
+		t.Fatal(err)
+	}
+	kept := slices.Clone(first)
+	r.reuseRows()
+	var prev []string
+	for i := 1; i < len(want); i++ {
+		cells, row, err := tbl.Next()
+		if err != nil {
+			t.Fatalf("row %d: %v", i, err)
+		}
+		if row != want[i].Row || !slices.Equal(cells, want[i].Cells) {
+			t.Errorf("row %d: got %d %q, want %d %q", i, row, cells, want[i].Row, want[i].Cells)
+		}
+		if prev != nil && &cells[0] != &prev[0] {
+			t.Errorf("row %d is in a new slice, want the reader's reused one", i)
+		}
+		prev = cells
+	}
+	if !slices.Equal(first, kept) {
+		t.Errorf("the row read before reuseRows changed: %q, was %q", first, kept)
+	}
 }
