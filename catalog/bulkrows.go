@@ -245,7 +245,6 @@ func (t *ImportTx) dropBatch(bi *batchInsert) bool {
 // down the slower path that looks it up in the catalog.
 type keyFilter struct {
 	bits []uint64
-	seed maphash.Seed
 }
 
 // keyFilterBits is the size of a keyFilter in bits (a power of two); a
@@ -255,17 +254,29 @@ var keyFilterBits = 1 << 25
 const keyFilterProbes = 5
 
 func newKeyFilter() *keyFilter {
-	return &keyFilter{bits: make([]uint64, keyFilterBits/64), seed: maphash.MakeSeed()}
+	return &keyFilter{bits: make([]uint64, keyFilterBits/64)}
 }
 
-func (f *keyFilter) hash(pk, mk string) (h1, h2 uint64) {
-	h1 = maphash.String(f.seed, pk) ^ maphash.String(f.seed, mk)*0x9e3779b97f4a7c15
-	h2 = (h1>>33 | h1<<31) | 1 // double hashing: probe i at h1 + i·h2
-	return h1, h2
+// keySeed seeds the hashes of every keyFilter of the process, so that
+// Prepare can hash a part's key on the reading goroutine, ahead of the
+// writer that tests and adds it (keyHash).
+var keySeed = maphash.MakeSeed()
+
+// keyHash is the filter hash of an identity key: h1 and the step h2 of
+// the double hashing (probe i at h1 + i·h2).
+type keyHash struct{ h1, h2 uint64 }
+
+func hashKey(pk, mk string) keyHash {
+	h1 := maphash.String(keySeed, pk) ^ maphash.String(keySeed, mk)*0x9e3779b97f4a7c15
+	return keyHash{h1, (h1>>33 | h1<<31) | 1}
 }
 
-func (f *keyFilter) add(pk, mk string) {
-	h1, h2 := f.hash(pk, mk)
+func (f *keyFilter) add(pk, mk string) { f.addHash(hashKey(pk, mk)) }
+
+func (f *keyFilter) mayHave(pk, mk string) bool { return f.mayHaveHash(hashKey(pk, mk)) }
+
+func (f *keyFilter) addHash(h keyHash) {
+	h1, h2 := h.h1, h.h2
 	mask := uint64(len(f.bits)*64 - 1)
 	for i := range uint64(keyFilterProbes) {
 		b := (h1 + i*h2) & mask
@@ -273,8 +284,8 @@ func (f *keyFilter) add(pk, mk string) {
 	}
 }
 
-func (f *keyFilter) mayHave(pk, mk string) bool {
-	h1, h2 := f.hash(pk, mk)
+func (f *keyFilter) mayHaveHash(h keyHash) bool {
+	h1, h2 := h.h1, h.h2
 	mask := uint64(len(f.bits)*64 - 1)
 	for i := range uint64(keyFilterProbes) {
 		b := (h1 + i*h2) & mask

@@ -305,6 +305,10 @@ func TestKindVariant(t *testing.T) {
 		if v == 0 || Kinds[v-1] != p.Kind || pp.variant != v {
 			t.Fatalf("%s %s: variant %d, Prepare's %d", p.Kind, p.MPN, v, pp.variant)
 		}
+		// Prepare hashes the key for the writer's filter (keyHash)
+		if pp.hash != hashKey(normKey(p.MPN), normKey(p.Mfr)) || pp.hash.h2%2 != 1 {
+			t.Fatalf("%s %s: Prepare's key hash %+v, want %+v", p.Kind, p.MPN, pp.hash, hashKey(normKey(p.MPN), normKey(p.Mfr)))
+		}
 		seen[p.Kind] = true
 		r := append(row(nil), pp.row...)
 		r[notOfKind[v-1][0]] = 1.0 // a value in a field of another kind

@@ -336,7 +336,7 @@ func (t *ImportTx) bulkAdd(pp *Prepared) (Outcome, []Change, error) {
 	b.nextID++
 	b.parts.batch.vals = append(append(b.parts.batch.vals, id, pp.mk, pp.pk), pp.row...)
 	b.variants = append(b.variants, pp.variant)
-	b.filter.add(pp.pk, pp.mk)
+	b.filter.addHash(pp.hash)
 	if err := t.noteNew(id, pp.offers); err != nil {
 		return 0, nil, t.fail(err)
 	}
@@ -529,7 +529,8 @@ type Prepared struct {
 	offers  []offerRow
 	ins     []driver.NamedValue // the row path's INSERT arguments (insertArgs)
 	buf     []byte
-	variant uint8 // statement variant of a batched write (kindVariant)
+	variant uint8   // statement variant of a batched write (kindVariant)
+	hash    keyHash // of (pk, mk), for the batched writes' key filter
 }
 
 // A Preparer checks parts for an import ahead of the writes, so that an
@@ -558,6 +559,7 @@ func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
 	dst.mk, dst.pk = mk, pk
 	dst.ins = dst.ins[:0] // built by insertArgs when the part takes the row path
 	dst.variant = kindVariant(nr)
+	dst.hash = hashKey(pk, mk)
 	return nil
 }
 
@@ -622,7 +624,7 @@ func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 	}
 	p, nr, offers, mk, pk := pp.p, pp.row, pp.offers, pp.mk, pp.pk
 	if t.bulk != nil {
-		if !t.bulk.filter.mayHave(pk, mk) {
+		if !t.bulk.filter.mayHaveHash(pp.hash) {
 			return t.bulkAdd(pp)
 		}
 		if err := t.flushBulk(); err != nil {

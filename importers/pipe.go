@@ -35,8 +35,33 @@ const (
 
 type rowBatch struct {
 	items []rowItem
-	n     int   // items filled
-	err   error // the rows end here with this error
+	n     int       // items filled
+	err   error     // the rows end here with this error
+	ord   []int     // the order the writer puts items[:n] in (see order)
+	keys  []sortKey // order's buffer
+}
+
+// order sets b.ord: refused rows first, in row order, then the parts
+// grouped by kind, and in each kind in the order of their identity key
+// (part number, maker); rows with one key keep their order, and all go in
+// the group of the kind of the first of them, so of two rows with one key
+// the earlier is still put first whatever their kinds. Inserts next to
+// each other in the identity index cost fewer page reads and writes (see
+// pipeBatch), and the catalog writes a batch of new parts one statement
+// per run of one kind (catalog.Prepared.SortKey). The reader orders each
+// batch before it sends it, so that the writer, the busier side of an
+// import, does not.
+func (b *rowBatch) order() {
+	b.ord, b.keys = b.ord[:0], b.keys[:0]
+	for i := range b.items[:b.n] {
+		it := &b.items[i]
+		var k sortKey
+		if it.part != nil && it.perr == nil && it.rej == nil {
+			k.kind, k.pk, k.mk = it.prep.SortKey()
+		}
+		b.ord, b.keys = append(b.ord, i), append(b.keys, k)
+	}
+	sortItems(b.ord, b.keys)
 }
 
 // rowPipe carries batches of rows from one reading goroutine to one
@@ -85,6 +110,7 @@ func (p *rowPipe) item() *rowItem {
 func (p *rowPipe) send() bool {
 	b := p.cur
 	p.cur = nil
+	b.order()
 	select {
 	case <-p.stop:
 		return false
@@ -114,34 +140,15 @@ func (p *rowPipe) close() {
 	close(p.full)
 }
 
-// drain runs put on every item on the writer's goroutine and returns the
-// first error, of put or of the reader (fail). Within a batch, refused
-// rows come first, in row order, then the parts grouped by kind, and in
-// each kind in the order of their identity key (part number, maker): rows
-// with one key keep their order, and all go in the group of the kind of
-// the first of them, so of two rows with one key the earlier is still put
-// first whatever their kinds, and the batches keep their order. Inserts
-// next to each other in the identity index cost fewer page reads and
-// writes (see pipeBatch), and the catalog writes a batch of new parts one
-// statement per run of one kind (catalog.Prepared.SortKey). It returns
+// drain runs put on every item on the writer's goroutine, batch after
+// batch, each in the order the reader gave it (rowBatch.order), and
+// returns the first error, of put or of the reader (fail). It returns
 // only after the reader has ended, so nothing reads the sheet afterwards.
 func (p *rowPipe) drain(put func(*rowItem) error) error {
 	var err error
-	var ord []int
-	var keys []sortKey
 	for b := range p.full {
 		if err == nil {
-			ord, keys = ord[:0], keys[:0]
-			for i := range b.items[:b.n] {
-				it := &b.items[i]
-				var k sortKey
-				if it.part != nil && it.perr == nil && it.rej == nil {
-					k.kind, k.pk, k.mk = it.prep.SortKey()
-				}
-				ord, keys = append(ord, i), append(keys, k)
-			}
-			sortItems(ord, keys)
-			for _, i := range ord {
+			for _, i := range b.ord {
 				if err = put(&b.items[i]); err != nil {
 					break
 				}
