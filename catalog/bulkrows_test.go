@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -346,9 +347,13 @@ func TestKindVariant(t *testing.T) {
 			}
 		}
 		// columns and selected values line up: mfr_key, mpn_key, the
-		// fields, created, updated
-		if got := len(regexp.MustCompile(`, c[0-9]+\b`).FindAllString(q, -1)); got != n+1 {
-			t.Errorf("variant %d selects %d batch columns after the first, want %d", v+1, got, n+1)
+		// fields but the kind, which is the variant's literal, created,
+		// updated
+		if got := len(regexp.MustCompile(`, c[0-9]+\b`).FindAllString(q, -1)); got != n {
+			t.Errorf("variant %d selects %d batch columns after the first, want %d", v+1, got, n)
+		}
+		if lit := ", '" + string(k) + "', c"; strings.Count(q, lit) != 1 || strings.Contains(q, ", c"+strconv.Itoa(3+kindField)+",") {
+			t.Errorf("variant %d does not select its kind as the literal %q:\n%s", v+1, k, q)
 		}
 	}
 }

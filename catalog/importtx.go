@@ -274,12 +274,19 @@ func (t *ImportTx) startBulk(f *keyFilter, nextID int64) {
 		// Variant v > 0 names only the fields of kind Kinds[v-1]: the
 		// others are NULL in its rows, and every column named costs a
 		// call from SQLite into the batch's cursor per row.
+		// Its rows are all of that kind, so the kind is a literal of the
+		// statement rather than a value the cursor hands over (a text
+		// value costs two copies into C memory).
 		var cols, sel strings.Builder
 		for i, f := range Fields {
 			if variant > 0 && !f.AppliesTo(Kinds[variant-1]) {
 				continue
 			}
 			cols.WriteString(`, "` + colName(f.Name) + `"`)
+			if variant > 0 && i == kindField {
+				sel.WriteString(", '" + strings.ReplaceAll(string(Kinds[variant-1]), "'", "''") + "'")
+				continue
+			}
 			sel.WriteString(", c" + strconv.Itoa(3+i))
 		}
 		return `INSERT OR FAIL INTO parts(mfr_key, mpn_key` + cols.String() + `, created, updated)

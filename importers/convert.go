@@ -30,6 +30,26 @@ type converter struct {
 	fedCols []bool // by column: it gave a value of this row
 	present map[catalog.Kind][]string
 	texts   []kindText
+	reratec map[string]string // rerating cells already read and their normal form (rerate)
+}
+
+// rerateMemo bounds converter.reratec: a sheet repeats a few rerating
+// curves over thousands of fuses, and reading one costs some 3 µs.
+const rerateMemo = 256
+
+// rerate is parseRerate with a memo of the cells it accepted.
+func (cv *converter) rerate(v string) (string, error) {
+	if s, ok := cv.reratec[v]; ok {
+		return s, nil
+	}
+	s, err := parseRerate(v)
+	if err == nil && len(cv.reratec) < rerateMemo {
+		if cv.reratec == nil {
+			cv.reratec = map[string]string{}
+		}
+		cv.reratec[v] = s
+	}
+	return s, err
 }
 
 // colInfo is what convert needs to know of a column on every row, worked
@@ -249,7 +269,7 @@ func (cv *converter) convertInto(cells []string, p *catalog.Part) (*catalog.Part
 	}
 	if kind == catalog.Fuse {
 		if v, i := r.first("rerate"); v != "" {
-			s, err := parseRerate(v)
+			s, err := cv.rerate(v)
 			if err != nil {
 				return nil, &rowReject{column: lo.header(i, "rerate"), raw: v, reason: err.Error()}
 			}

@@ -1,6 +1,8 @@
 package importers
 
 import (
+	"fmt"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -188,6 +190,28 @@ func TestValueWords(t *testing.T) {
 		if got != tc.want || (err != nil) != (tc.want == "") {
 			t.Errorf("parseRerate(%q) = %q, %v; want %q", tc.in, got, err, tc.want)
 		}
+		// the converter's memo gives the same, the second time too
+		cv := &converter{}
+		for range 2 {
+			if got, err := cv.rerate(tc.in); got != tc.want || (err != nil) != (tc.want == "") {
+				t.Errorf("converter.rerate(%q) = %q, %v; want %q", tc.in, got, err, tc.want)
+			}
+		}
+	}
+	// the memo keeps at most rerateMemo cells and stays right past them
+	cv := &converter{}
+	for i := range rerateMemo + 50 {
+		in := fmt.Sprintf("85:0.8; 25:1; %d:0.9", 26+i%200)
+		want, _ := parseRerate(in)
+		if got, err := cv.rerate(in); err != nil || got != want || want == "" {
+			t.Fatalf("converter.rerate(%q) = %q, %v; want %q", in, got, err, want)
+		}
+	}
+	if len(cv.reratec) > rerateMemo {
+		t.Errorf("memo holds %d cells, more than %d", len(cv.reratec), rerateMemo)
+	}
+	if _, err := cv.rerate("25:3"); err == nil {
+		t.Error("a refused cell was accepted after the memo filled")
 	}
 }
 
@@ -240,5 +264,15 @@ func TestPrices(t *testing.T) {
 	}
 	if got, err := sortBreaks(breaks(10, 0.4, 1, 0.5, 10, 0.4)); err != nil || len(got) != 2 || got[0].Qty != 1 {
 		t.Errorf("sortBreaks = %v, %v", got, err)
+	}
+	// in order already (the common case), and out of order
+	for _, in := range [][]catalog.PriceBreak{breaks(1, 0.5, 10, 0.42, 100, 0.31), breaks(100, 0.31, 1, 0.5, 10, 0.42)} {
+		got, err := sortBreaks(in)
+		if want := breaks(1, 0.5, 10, 0.42, 100, 0.31); err != nil || !reflect.DeepEqual(got, want) {
+			t.Errorf("sortBreaks = %v, %v; want %v", got, err, want)
+		}
+	}
+	if _, err := sortBreaks(breaks(1, 0.5, 10, 0.4, 10, 0.3)); err == nil {
+		t.Error("two prices for one quantity accepted when in order")
 	}
 }

@@ -1,11 +1,12 @@
 package importers
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
 	"math"
 	"regexp"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -153,8 +154,12 @@ func parseBreaks(s string) ([]catalog.PriceBreak, string, error) {
 
 // sortBreaks orders breaks by quantity and drops exact repeats; two prices
 // for one quantity are an error.
+func cmpQty(x, y catalog.PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }
+
 func sortBreaks(b []catalog.PriceBreak) ([]catalog.PriceBreak, error) {
-	sort.SliceStable(b, func(i, j int) bool { return b[i].Qty < b[j].Qty })
+	if !slices.IsSortedFunc(b, cmpQty) { // sheets list them in order
+		slices.SortStableFunc(b, cmpQty)
+	}
 	out := b[:0]
 	for i, x := range b {
 		if i > 0 && x.Qty == out[len(out)-1].Qty {
