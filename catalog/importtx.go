@@ -530,7 +530,6 @@ var textFields = map[string]bool{"kind": true, "type": true, "mfr": true, "mpn":
 // ready for ImportTx.PutPrepared. Its buffers are reused by the next
 // Prepare into it.
 type Prepared struct {
-	p       *Part
 	mk, pk  string
 	row     row
 	offers  []offerRow
@@ -562,7 +561,7 @@ func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
 	if err != nil {
 		return invalidPart{err}
 	}
-	dst.p, dst.offers = p, offers
+	dst.offers = offers
 	dst.mk, dst.pk = mk, pk
 	dst.ins = dst.ins[:0] // built by insertArgs when the part takes the row path
 	dst.variant = kindVariant(nr)
@@ -629,7 +628,7 @@ func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 			return 0, nil, t.fail(err)
 		}
 	}
-	p, nr, offers, mk, pk := pp.p, pp.row, pp.offers, pp.mk, pp.pk
+	nr, offers, mk, pk := pp.row, pp.offers, pp.mk, pp.pk
 	if t.bulk != nil {
 		if !t.bulk.filter.mayHaveHash(pp.hash) {
 			return t.bulkAdd(pp)
@@ -666,7 +665,7 @@ func (t *ImportTx) PutPrepared(pp *Prepared) (Outcome, []Change, error) {
 			return 0, nil, err
 		}
 		if !found {
-			return 0, nil, t.fail(fmt.Errorf("part %s %s neither inserted nor found", p.Mfr, p.MPN))
+			return 0, nil, t.fail(fmt.Errorf("part %v %v neither inserted nor found", nr[fieldIndex["mfr"]], nr[fieldIndex["mpn"]]))
 		}
 	}
 	t.lastFound = true

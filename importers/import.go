@@ -437,6 +437,7 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 	go func() {
 		defer pipe.close()
 		var pr *catalog.Preparer
+		var scratch catalog.Part
 		if prepared {
 			pr = &catalog.Preparer{}
 		}
@@ -465,15 +466,23 @@ func (rn *run) sheet(name string, tbl Table) (ok bool, err error) {
 				return false // the writer stopped
 			}
 			it.row = row
+			if pr != nil {
+				// the writer takes the prepared form only: one part
+				// serves every row (see rowItem.part)
+				p, rej := cv.convertInto(cells, &scratch)
+				if rej != nil {
+					it.rej = rej
+					return true
+				}
+				it.perr = pr.Prepare(p, &it.prep)
+				return true
+			}
 			p, rej := cv.convertInto(cells, &it.buf)
 			if rej != nil {
 				it.rej = rej
 				return true
 			}
 			it.part = p
-			if pr != nil {
-				it.perr = pr.Prepare(p, &it.prep)
-			}
 			return true
 		}
 		for _, b := range buf[start:] {
