@@ -345,7 +345,11 @@ func (cv *converter) convertInto(cells []string, p *catalog.Part) (*catalog.Part
 		return nil, &rowReject{column: col, raw: raw, reason: reason}
 	}
 
-	o, rej := cv.offer(r)
+	var reuse []catalog.PriceBreak // the breaks p held before, to fill again
+	if len(offers) < cap(offers) {
+		reuse = offers[:1][0].Breaks
+	}
+	o, rej := cv.offer(r, reuse)
 	if rej != nil {
 		return nil, rej
 	}

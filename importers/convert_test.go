@@ -220,7 +220,7 @@ func TestConvertGoodRows(t *testing.T) {
 			stale := &catalog.Part{Kind: catalog.Fuse, Type: "T", Mfr: "Old", MPN: "O1", Desc: "stale", Package: "P", Datasheet: "d",
 				Lifecycle: "eol", RoHS: ptr(false), AECQ: ptr(true), FuseStd: "ul", Rerate: "25:1",
 				Num:    map[string]float64{"vrrm": 1, "in": 3, "pd": 99},
-				Offers: []catalog.Offer{{Supplier: "stale", SKU: "S", MOQ: 7}, {Supplier: "stale2"}}}
+				Offers: []catalog.Offer{{Supplier: "stale", SKU: "S", MOQ: 7, Breaks: breaks(5, 9, 50, 8, 500, 7, 5000, 6)}, {Supplier: "stale2"}}}
 			if q, rej := cv.convertInto(tc.cells, stale); rej != nil {
 				t.Errorf("into a used part: rejected: %s", rej.reason)
 			} else if q != stale || !reflect.DeepEqual(*q, *p) {
@@ -313,7 +313,7 @@ func FuzzConvertRow(f *testing.F) {
 		p, rej := cv.convert(strings.Split(cells, "|"))
 		// converting into a part that held another row decides alike
 		stale := &catalog.Part{Kind: catalog.MOSFET, Type: "n", Mfr: "Old", MPN: "O1", Desc: "stale", RoHS: ptr(true),
-			FuseStd: "iec", Num: map[string]float64{"vds": 30, "in": 2}, Offers: []catalog.Offer{{Supplier: "stale"}}}
+			FuseStd: "iec", Num: map[string]float64{"vds": 30, "in": 2}, Offers: []catalog.Offer{{Supplier: "stale", Breaks: breaks(5, 9, 50, 8)}}}
 		q, rej2 := cv.convertInto(strings.Split(cells, "|"), stale)
 		if (rej == nil) != (rej2 == nil) || rej != nil && *rej != *rej2 || rej == nil && !reflect.DeepEqual(*p, *q) {
 			t.Fatalf("convert and convertInto a used part differ:\n%+v %+v\n%+v %+v", p, rej, q, rej2)

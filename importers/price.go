@@ -175,9 +175,13 @@ func sortBreaks(b []catalog.PriceBreak) ([]catalog.PriceBreak, error) {
 
 // offer reads the offer columns of a row. A row with no supplier, SKU,
 // stock, MOQ or price gives no offer.
-func (cv *converter) offer(r row) (*catalog.Offer, *rowReject) {
+//
+// The price breaks are appended to breaks[:0] (a buffer of the caller's
+// to reuse, or nil).
+func (cv *converter) offer(r row, breaks []catalog.PriceBreak) (*catalog.Offer, *rowReject) {
 	lo := cv.lo
 	o := catalog.Offer{}
+	breaks = breaks[:0]
 	var has bool
 	if v, _ := r.first(fSupplier); v != "" {
 		o.Supplier, has = cleanSpaces(v), true
@@ -228,7 +232,6 @@ func (cv *converter) offer(r row) (*catalog.Offer, *rowReject) {
 		written, writtenAt = cur, i
 		return nil
 	}
-	var breaks []catalog.PriceBreak
 	for _, i := range lo.prices {
 		raw := r.at(i)
 		if isAbsent(raw) {
