@@ -341,7 +341,7 @@ func (t *ImportTx) bulkAdd(pp *Prepared) (Outcome, []Change, error) {
 	b := t.bulk
 	id := b.nextID
 	b.nextID++
-	b.parts.batch.vals = append(append(b.parts.batch.vals, id, pp.mk, pp.pk), pp.row...)
+	b.parts.batch.vals = append(append(append(b.parts.batch.vals, id), pp.keyVals[:]...), pp.row...)
 	b.variants = append(b.variants, pp.variant)
 	b.filter.addHash(pp.hash)
 	if err := t.noteNew(id, pp.offers); err != nil {
@@ -537,6 +537,7 @@ type Prepared struct {
 	buf     []byte
 	variant uint8   // statement variant of a batched write (kindVariant)
 	hash    keyHash // of (pk, mk), for the batched writes' key filter
+	keyVals [2]any  // mk, pk as driver values, boxed on the reading goroutine
 }
 
 // A Preparer checks parts for an import ahead of the writes, so that an
@@ -566,6 +567,7 @@ func (pr *Preparer) Prepare(p *Part, dst *Prepared) error {
 	dst.ins = dst.ins[:0] // built by insertArgs when the part takes the row path
 	dst.variant = kindVariant(nr)
 	dst.hash = hashKey(pk, mk)
+	dst.keyVals = [2]any{mk, pk}
 	return nil
 }
 
@@ -783,15 +785,10 @@ func (t *ImportTx) noteNew(id int64, offers []offerRow) error {
 		if dupOffer(offers[:i], o) {
 			continue // the first of two offers with one supplier and SKU wins
 		}
-		br := o.breaks
-		if br == "" {
-			br = "[]"
+		if o.vals[0] == nil { // not from Prepare
+			o.batchVals()
 		}
-		var stock any
-		if o.stock != nil {
-			stock = *o.stock
-		}
-		t.newOffers.batch.vals = append(t.newOffers.batch.vals, id, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br)
+		t.newOffers.batch.vals = append(append(t.newOffers.batch.vals, id), o.vals[:]...)
 	}
 	t.added++
 	t.dirty = true
@@ -865,6 +862,23 @@ type offerRow struct {
 	moq                   int64
 	currency              string
 	breaks                string // canonical JSON, "" when none given
+	// vals are the batched insert's values after the part id, as
+	// driver values (see batchVals): boxed by Prepare on the reading
+	// goroutine rather than by the writer.
+	vals [offerCols - 1]any
+}
+
+// batchVals sets o.vals from its fields.
+func (o *offerRow) batchVals() {
+	br := o.breaks
+	if br == "" {
+		br = "[]"
+	}
+	var stock any
+	if o.stock != nil {
+		stock = *o.stock
+	}
+	o.vals = [offerCols - 1]any{o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br}
 }
 
 func (o *offerRow) label() string {
@@ -913,6 +927,7 @@ func (pr *Preparer) normOffers(p *Part, out []offerRow) ([]offerRow, error) {
 			}
 			r.breaks = s
 		}
+		r.batchVals()
 		out = append(out, r)
 	}
 	return out, nil

@@ -356,3 +356,23 @@ func FuzzConvertRow(f *testing.F) {
 		}
 	})
 }
+
+// validatePart skips numberReason for values in (0, 300] of every field
+// but vz_tol: for each number field alone, it must refuse exactly what
+// numberReason refuses.
+func TestValidatePartNumberFastPath(t *testing.T) {
+	vals := []float64{math.Inf(-1), -100, -70, -1, 0, 1e-12, 0.3, 0.5, 0.51, 1, 150, 299.9, 300, 300.1, 1e300, math.Inf(1), math.NaN()}
+	for _, f := range catalog.Fields {
+		if f.Type != catalog.Number {
+			continue
+		}
+		for _, v := range vals {
+			p := &catalog.Part{Kind: catalog.Diode, Num: map[string]float64{f.Name: v}}
+			field, reason := validatePart(p)
+			want := numberReason(f.Name, v)
+			if reason != want || (want != "" && field != f.Name) {
+				t.Errorf("%s = %g: validatePart %q %q, numberReason %q", f.Name, v, field, reason, want)
+			}
+		}
+	}
+}
