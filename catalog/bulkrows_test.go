@@ -190,10 +190,10 @@ func TestBatchedAfterARunOfNewParts(t *testing.T) {
 	oldAfter := bulkAfter
 	bulkAfter = 200
 	defer func() { bulkAfter = oldAfter }()
-	run := func(bulk bool) ([]Outcome, []string, bool) {
-		oldBulk := bulkImports
-		bulkImports = bulk
-		defer func() { bulkImports = oldBulk }()
+	run := func(bulk bool, bits int) ([]Outcome, []string, bool) {
+		oldBulk, oldBits := bulkImports, keyFilterBits
+		bulkImports, keyFilterBits = bulk, bits
+		defer func() { bulkImports, keyFilterBits = oldBulk, oldBits }()
 		s := openTemp(t)
 		importAll(t, s, first)
 		ctx := context.Background()
@@ -223,18 +223,23 @@ func TestBatchedAfterARunOfNewParts(t *testing.T) {
 		}
 		return outs, dumpCatalog(t, s), on
 	}
-	wantOuts, want, _ := run(false)
-	outs, got, on := run(true)
-	if !on {
-		t.Error("the batched writing never started")
-	}
-	for i := range outs {
-		if outs[i] != wantOuts[i] {
-			t.Errorf("row %d: %v, row path %v", i, outs[i], wantOuts[i])
-			break
+	wantOuts, want, _ := run(false, keyFilterBits)
+	// a filter of 64 bits says "maybe" to nearly every key, so most new
+	// parts after the start take the row path between batches: their
+	// links come from the batches' id ranges and from Commit's (linkNew)
+	for _, bits := range []int{keyFilterBits, 64} {
+		outs, got, on := run(true, bits)
+		if !on {
+			t.Errorf("filter of %d bits: the batched writing never started", bits)
 		}
+		for i := range outs {
+			if outs[i] != wantOuts[i] {
+				t.Errorf("filter of %d bits: row %d: %v, row path %v", bits, i, outs[i], wantOuts[i])
+				break
+			}
+		}
+		sameDump(t, fmt.Sprintf("batched after a run (filter of %d bits) vs row path", bits), got, want)
 	}
-	sameDump(t, "batched after a run vs row path", got, want)
 }
 
 // An import whose context ends part way writes nothing, on the row path

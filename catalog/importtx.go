@@ -1239,7 +1239,7 @@ func (t *ImportTx) finish() error {
 				return err
 			}
 			t.linkedTo = t.lastNew
-		} else if err := t.linkNew(t.lastNew); err != nil {
+		} else if err := t.linkNew(math.MaxInt64); err != nil { // every id above linkedTo
 			return err
 		}
 	}

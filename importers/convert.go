@@ -47,7 +47,8 @@ func (cv *converter) rerate(v string) (string, error) {
 		if cv.reratec == nil {
 			cv.reratec = map[string]string{}
 		}
-		cv.reratec[v] = s
+		// a cell is a piece of its whole record's text: keep a copy
+		cv.reratec[strings.Clone(v)] = s
 	}
 	return s, err
 }

@@ -179,7 +179,7 @@ func (p *rowPipe) drain(put func(*rowItem) error) error {
 	return err
 }
 
-// sortKey is what drain orders a batch's items by.
+// sortKey is what rowBatch.order orders a batch's items by.
 type sortKey struct {
 	kind   catalog.Kind
 	pk, mk string

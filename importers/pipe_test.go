@@ -173,7 +173,7 @@ func (f *failAfter) Put(p *catalog.Part) (catalog.Outcome, []catalog.Change, err
 // When the writer fails, the reader stops soon after (it does not read the
 // rest of the file) and has ended when sheet returns.
 func TestPipeStopsReaderOnWriteFailure(t *testing.T) {
-	const n = 20000
+	n := 300 + (pipeDepth+3)*pipeBatch + 20000 // more than the reader may read past the failure
 	data := pipeCSV(n, 0, 0, false)
 	before := runtime.NumGoroutine()
 	sk := &failAfter{checkSink: checkSink{seen: map[string]string{}}, n: 300}

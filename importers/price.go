@@ -152,10 +152,10 @@ func parseBreaks(s string) ([]catalog.PriceBreak, string, error) {
 	return out, cur, nil
 }
 
-// sortBreaks orders breaks by quantity and drops exact repeats; two prices
-// for one quantity are an error.
 func cmpQty(x, y catalog.PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }
 
+// sortBreaks orders breaks by quantity and drops exact repeats; two prices
+// for one quantity are an error.
 func sortBreaks(b []catalog.PriceBreak) ([]catalog.PriceBreak, error) {
 	if !slices.IsSortedFunc(b, cmpQty) { // sheets list them in order
 		slices.SortStableFunc(b, cmpQty)
