@@ -1,7 +1,6 @@
 package catalog
 
 import (
-	"cmp"
 	"context"
 	"database/sql"
 	"database/sql/driver"
@@ -807,10 +806,7 @@ func (t *ImportTx) noteNew(id int64, offers []offerRow) error {
 		if dupOffer(offers[:i], o) {
 			continue // the first of two offers with one supplier and SKU wins
 		}
-		if o.vals[0] == nil { // not from Prepare
-			o.batchVals()
-		}
-		t.newOffers.batch.vals = append(append(t.newOffers.batch.vals, id), o.vals[:]...)
+		t.newOffers.batch.vals = append(append(t.newOffers.batch.vals, id), o.values()...)
 	}
 	t.added++
 	t.dirty = true
@@ -890,7 +886,8 @@ type offerRow struct {
 	vals [offerCols - 1]any
 }
 
-// batchVals sets o.vals from its fields.
+// batchVals sets o.vals from its fields. Prepare sets them; values sets
+// them for an offer made otherwise.
 func (o *offerRow) batchVals() {
 	br := o.breaks
 	if br == "" {
@@ -901,6 +898,14 @@ func (o *offerRow) batchVals() {
 		stock = *o.stock
 	}
 	o.vals = [offerCols - 1]any{o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br}
+}
+
+// values returns o.vals, setting them first if nothing has.
+func (o *offerRow) values() []any {
+	if o.vals[0] == nil {
+		o.batchVals()
+	}
+	return o.vals[:]
 }
 
 func (o *offerRow) label() string {
@@ -960,11 +965,10 @@ func (pr *Preparer) normOffers(p *Part, out []offerRow) ([]offerRow, error) {
 // Breaks already in ascending quantity (as importers give them) are
 // neither copied nor sorted, and the text is built in a stack buffer.
 func encodeBreaks(bs []PriceBreak) (string, error) {
-	byQty := func(x, y PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }
 	s := bs
-	if !slices.IsSortedFunc(bs, byQty) {
+	if !slices.IsSortedFunc(bs, ByQty) {
 		s = append([]PriceBreak(nil), bs...)
-		slices.SortStableFunc(s, byQty)
+		slices.SortStableFunc(s, ByQty)
 	}
 	var buf [96]byte
 	b := append(buf[:0], '[')
@@ -1022,15 +1026,8 @@ func breaksText(s string) string {
 }
 
 func (t *ImportTx) insertOffer(partID int64, o *offerRow) error {
-	br := o.breaks
-	if br == "" {
-		br = "[]"
-	}
-	var stock any
-	if o.stock != nil {
-		stock = *o.stock
-	}
-	_, err := t.insOffer.ExecContext(rowCtx, partID, o.supplier, o.supKey, o.sku, stock, o.moq, o.currency, br, t.srcID)
+	args := append(append(append(make([]any, 0, offerCols+1), partID), o.values()...), t.srcID)
+	_, err := t.insOffer.ExecContext(rowCtx, args...)
 	return err
 }
 

@@ -4,6 +4,7 @@
 package catalog
 
 import (
+	"cmp"
 	"encoding/json"
 	"strings"
 	"unicode"
@@ -219,6 +220,9 @@ type PriceBreak struct {
 	Qty   int64   `json:"qty"`
 	Price float64 `json:"unit_price"`
 }
+
+// ByQty orders price breaks by quantity (for slices.SortStableFunc).
+func ByQty(x, y PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }
 
 // NormKey normalises a manufacturer or part number for identity: upper
 // case, with spaces, dashes (ASCII and Unicode) and underscores removed, so

@@ -1,7 +1,6 @@
 package importers
 
 import (
-	"cmp"
 	"errors"
 	"fmt"
 	"math"
@@ -152,13 +151,11 @@ func parseBreaks(s string) ([]catalog.PriceBreak, string, error) {
 	return out, cur, nil
 }
 
-func cmpQty(x, y catalog.PriceBreak) int { return cmp.Compare(x.Qty, y.Qty) }
-
 // sortBreaks orders breaks by quantity and drops exact repeats; two prices
 // for one quantity are an error.
 func sortBreaks(b []catalog.PriceBreak) ([]catalog.PriceBreak, error) {
-	if !slices.IsSortedFunc(b, cmpQty) { // sheets list them in order
-		slices.SortStableFunc(b, cmpQty)
+	if !slices.IsSortedFunc(b, catalog.ByQty) { // sheets list them in order
+		slices.SortStableFunc(b, catalog.ByQty)
 	}
 	out := b[:0]
 	for i, x := range b {
